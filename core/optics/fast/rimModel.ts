@@ -1,0 +1,539 @@
+/**
+ * Fast model: the field in and around the disc's shadow as an integral along the rim.
+ *
+ * Physics notes §4. With the complex phase Φ(Q) = k·[Ŵ(Q) + |Q−F|²/(2L')] (Ŵ folds the Gaussian
+ * amplitude in as an imaginary part), g = ∇Φ and H = ∇∇Φ, the field V = e^{iΦ}·H⁻¹g/(i·gᵀH⁻¹g) has
+ * divergence e^{iΦ} exactly when Φ is quadratic. By the divergence theorem the integral over the plane
+ * outside the disc becomes
+ *     ∫∫_outside e^{iΦ} = −∮_rim V·n_disc dl + Σ_{singular points of V outside the disc} U_all/2,
+ * where U_all = ∫∫_{R²} e^{iΦ} (the free beam) and V has two real singular points (zeros of gᵀH⁻¹g),
+ * each carrying half the free beam. g and H are evaluated at each rim point, so the rim term is exact
+ * for Gaussian beams with decentre, tilt, defocus and astigmatism and approximate for coma and beyond.
+ *
+ * The rim integral is a periodic trapezoid sum in the polar angle φ. Near the shadow edge a singular
+ * point approaches the rim and the integrand gets a pole p close to the real axis; the pole is removed
+ * analytically (its trapezoid sum −π·R·cot(Np/2) is known in closed form) and, being half in and half
+ * out, it carries U_all/4. The rim sum converges exponentially with N.
+ *
+ * Intensities are relative to the incident peak intensity at the disc plane.
+ */
+import type { BenchSetup, ZernikeTerm } from '../../setup/types.ts';
+import { edgePoint, edgePointComplex, edgeRadius } from '../discEdge.ts';
+import { effectiveDistanceM } from '../geometry.ts';
+import { emptyDerivs, evalPolynomial, wavefrontPolynomial, zernikePolynomialM, type Polynomial2D } from '../wavefront.ts';
+import { newSaddleResult, solveSaddle, type SaddleContext, type SaddleResult } from './saddle.ts';
+
+export interface FastModelOptions {
+  /** Rim samples; chosen from the phase bandwidth when absent. */
+  nPhi?: number;
+  /** ANSI indices j of Zernike coefficients (waves) to differentiate with respect to. */
+  derivativeTerms?: readonly number[];
+  /** Also differentiate with respect to the camera point (dU/dPx, dU/dPy). */
+  centerDerivatives?: boolean;
+}
+
+export interface FastFieldResult {
+  nx: number;
+  ny: number;
+  re: Float64Array;
+  im: Float64Array;
+  /** Names of the differentiated parameters: 'z4', …, 'px', 'py'. */
+  params: string[];
+  dRe: Float64Array[];
+  dIm: Float64Array[];
+  nPhi: number;
+  /** Pixels (row-major) where the saddle point of the free beam could not be found: the model is not valid there. */
+  invalid: Uint8Array;
+  invalidCount: number;
+}
+
+/** Rim samples needed for the phase bandwidth along the rim over the given camera extent. */
+export function chooseRimSamples(setup: BenchSetup, aberrations: readonly ZernikeTerm[], xsM: Float64Array, ysM: Float64Array): number {
+  const L = setup.camera.distanceM;
+  const lp = effectiveDistanceM(L, setup.beam.curvatureRadiusM);
+  const k = (2 * Math.PI) / setup.wavelengthM;
+  const poly = wavefrontPolynomial(setup.wavelengthM, setup.zernikeRadiusM, aberrations);
+  let fMax = 0;
+  for (const x of [xsM[0], xsM[xsM.length - 1]]) for (const y of [ysM[0], ysM[ysM.length - 1]]) fMax = Math.max(fMax, Math.hypot(x, y));
+  fMax *= lp / L;
+  // max over the rim of |dΦ/dφ| = k·|(∇W + (Q−F)/L')·Q'| ≤ k·(|∇W·Q'| + |Q·Q'|/L' + |F||Q'|/L')
+  const d = emptyDerivs();
+  let bw = 0;
+  const n = 720;
+  for (let i = 0; i < n; i++) {
+    const p = edgePoint(setup.disc, (2 * Math.PI * i) / n);
+    evalPolynomial(poly, p.x, p.y, d);
+    const tang = Math.hypot(p.dx, p.dy);
+    const b = k * (Math.abs(d.x * p.dx + d.y * p.dy) + Math.abs(p.x * p.dx + p.y * p.dy) / lp + (fMax * tang) / lp);
+    bw = Math.max(bw, b);
+  }
+  // edge harmonics add their own bandwidth
+  let hb = 0;
+  for (const h of setup.disc.edgeHarmonics) hb = Math.max(hb, h.order * (2 + (k * setup.disc.radiusM * Math.abs(h.amplitudeM)) / lp));
+  const need = 1.25 * Math.max(bw, hb) + 48;
+  return Math.max(64, Math.ceil(need / 16) * 16);
+}
+
+function cotComplex(x: number, y: number): [number, number] {
+  // cot(x + iy) = (sin 2x − i sinh 2y)/(cosh 2y − cos 2x)
+  const den = Math.cosh(2 * y) - Math.cos(2 * x);
+  return [Math.sin(2 * x) / den, -Math.sinh(2 * y) / den];
+}
+
+interface RimTables {
+  n: number;
+  qx: Float64Array;
+  qy: Float64Array;
+  /** e^{ikŴ(Q_j)} (complex) */
+  br: Float64Array;
+  bi: Float64Array;
+  g0xr: Float64Array; g0xi: Float64Array; g0yr: Float64Array; g0yi: Float64Array;
+  mxxr: Float64Array; mxxi: Float64Array; mxyr: Float64Array; mxyi: Float64Array; myyr: Float64Array; myyi: Float64Array;
+  /** m = M·ν */
+  mvxr: Float64Array; mvxi: Float64Array; mvyr: Float64Array; mvyi: Float64Array;
+}
+
+function buildRimTables(setup: BenchSetup, poly: Polynomial2D, n: number, k: number, lp: number): RimTables {
+  const w = setup.beam.radiusM;
+  const [cx, cy] = setup.beam.centerM;
+  const t: RimTables = {
+    n,
+    qx: new Float64Array(n), qy: new Float64Array(n), br: new Float64Array(n), bi: new Float64Array(n),
+    g0xr: new Float64Array(n), g0xi: new Float64Array(n), g0yr: new Float64Array(n), g0yi: new Float64Array(n),
+    mxxr: new Float64Array(n), mxxi: new Float64Array(n), mxyr: new Float64Array(n), mxyi: new Float64Array(n),
+    myyr: new Float64Array(n), myyi: new Float64Array(n),
+    mvxr: new Float64Array(n), mvxi: new Float64Array(n), mvyr: new Float64Array(n), mvyi: new Float64Array(n),
+  };
+  const d = emptyDerivs();
+  const kap = k / lp;
+  const gi = 2 / (w * w); // k·(2/(k w²))
+  for (let j = 0; j < n; j++) {
+    const p = edgePoint(setup.disc, (2 * Math.PI * j) / n);
+    evalPolynomial(poly, p.x, p.y, d);
+    t.qx[j] = p.x;
+    t.qy[j] = p.y;
+    const rc2 = (p.x - cx) ** 2 + (p.y - cy) ** 2;
+    const amp = Math.exp(-rc2 / (w * w));
+    t.br[j] = amp * Math.cos(k * d.v);
+    t.bi[j] = amp * Math.sin(k * d.v);
+    t.g0xr[j] = k * (d.x + p.x / lp);
+    t.g0xi[j] = gi * (p.x - cx);
+    t.g0yr[j] = k * (d.y + p.y / lp);
+    t.g0yi[j] = gi * (p.y - cy);
+    const hxxr = k * d.xx + kap, hxxi = gi;
+    const hxyr = k * d.xy, hxyi = 0;
+    const hyyr = k * d.yy + kap, hyyi = gi;
+    const detr = hxxr * hyyr - hxxi * hyyi - (hxyr * hxyr - hxyi * hxyi);
+    const deti = hxxr * hyyi + hxxi * hyyr - 2 * hxyr * hxyi;
+    const dd = detr * detr + deti * deti;
+    const div = (ar: number, ai: number): [number, number] => [(ar * detr + ai * deti) / dd, (ai * detr - ar * deti) / dd];
+    [t.mxxr[j], t.mxxi[j]] = div(hyyr, hyyi);
+    [t.myyr[j], t.myyi[j]] = div(hxxr, hxxi);
+    [t.mxyr[j], t.mxyi[j]] = div(-hxyr, -hxyi);
+    // ν = (Q'y, −Q'x): outward normal times |Q'|
+    const nux = p.dy, nuy = -p.dx;
+    t.mvxr[j] = t.mxxr[j] * nux + t.mxyr[j] * nuy;
+    t.mvxi[j] = t.mxxi[j] * nux + t.mxyi[j] * nuy;
+    t.mvyr[j] = t.mxyr[j] * nux + t.myyr[j] * nuy;
+    t.mvyi[j] = t.mxyi[j] * nux + t.myyi[j] * nuy;
+  }
+  return t;
+}
+
+/**
+ * Complex field U(P) (without any P-only phase factor) at camera points P = (xsM[ix], ysM[iy]),
+ * with optional analytic derivatives. Row-major output [iy*nx + ix].
+ */
+export function fastField(
+  setup: BenchSetup,
+  aberrations: readonly ZernikeTerm[],
+  xsM: Float64Array,
+  ysM: Float64Array,
+  options: FastModelOptions = {},
+): FastFieldResult {
+  const lambda = setup.wavelengthM;
+  const k = (2 * Math.PI) / lambda;
+  const L = setup.camera.distanceM;
+  const lp = effectiveDistanceM(L, setup.beam.curvatureRadiusM);
+  const kap = k / lp;
+  const poly = wavefrontPolynomial(lambda, setup.zernikeRadiusM, aberrations);
+  const n = options.nPhi ?? chooseRimSamples(setup, aberrations, xsM, ysM);
+  const nx = xsM.length;
+  const ny = ysM.length;
+  const dphi = (2 * Math.PI) / n;
+  const t = buildRimTables(setup, poly, n, k, lp);
+
+  // --- separable tables, layout [ix*n + j] and [iy*n + j]
+  const mkX = () => new Float64Array(nx * n);
+  const mkY = () => new Float64Array(ny * n);
+  const axr = mkX(), axi = mkX(), dxr = mkX(), dxi = mkX(), ndxr = mkX(), ndxi = mkX(), sxxr = mkX(), sxxi = mkX(), x2r = mkX(), x2i = mkX();
+  const eyr = mkY(), eyi = mkY(), dyr = mkY(), dyi = mkY(), ndyr = mkY(), ndyi = mkY(), syyr = mkY(), syyi = mkY();
+  const fxs = new Float64Array(nx);
+  const fys = new Float64Array(ny);
+  for (let ix = 0; ix < nx; ix++) {
+    const fx = (xsM[ix] * lp) / L;
+    fxs[ix] = fx;
+    for (let j = 0; j < n; j++) {
+      const o = ix * n + j;
+      const u = t.qx[j] - fx;
+      const ph = (k * u * u) / (2 * lp);
+      const c = Math.cos(ph), s = Math.sin(ph);
+      axr[o] = t.br[j] * c - t.bi[j] * s;
+      axi[o] = t.br[j] * s + t.bi[j] * c;
+      const dr = t.g0xr[j] - kap * fx, di = t.g0xi[j];
+      dxr[o] = dr; dxi[o] = di;
+      ndxr[o] = t.mvxr[j] * dr - t.mvxi[j] * di;
+      ndxi[o] = t.mvxr[j] * di + t.mvxi[j] * dr;
+      const d2r = dr * dr - di * di, d2i = 2 * dr * di;
+      sxxr[o] = t.mxxr[j] * d2r - t.mxxi[j] * d2i;
+      sxxi[o] = t.mxxr[j] * d2i + t.mxxi[j] * d2r;
+      x2r[o] = 2 * (t.mxyr[j] * dr - t.mxyi[j] * di);
+      x2i[o] = 2 * (t.mxyr[j] * di + t.mxyi[j] * dr);
+    }
+  }
+  for (let iy = 0; iy < ny; iy++) {
+    const fy = (ysM[iy] * lp) / L;
+    fys[iy] = fy;
+    for (let j = 0; j < n; j++) {
+      const o = iy * n + j;
+      const u = t.qy[j] - fy;
+      const ph = (k * u * u) / (2 * lp);
+      eyr[o] = Math.cos(ph); eyi[o] = Math.sin(ph);
+      const dr = t.g0yr[j] - kap * fy, di = t.g0yi[j];
+      dyr[o] = dr; dyi[o] = di;
+      ndyr[o] = t.mvyr[j] * dr - t.mvyi[j] * di;
+      ndyi[o] = t.mvyr[j] * di + t.mvyi[j] * dr;
+      const d2r = dr * dr - di * di, d2i = 2 * dr * di;
+      syyr[o] = t.myyr[j] * d2r - t.myyi[j] * d2i;
+      syyi[o] = t.myyr[j] * d2i + t.myyi[j] * d2r;
+    }
+  }
+
+  // --- derivative set-up
+  const terms = options.derivativeTerms ?? [];
+  const params: string[] = terms.map((j) => `z${j}`);
+  if (options.centerDerivatives) params.push('px', 'py');
+  const np = params.length;
+  const outRe = new Float64Array(nx * ny);
+  const outIm = new Float64Array(nx * ny);
+  const dRe = params.map(() => new Float64Array(nx * ny));
+  const dIm = params.map(() => new Float64Array(nx * ny));
+
+  // Per-term rim data: kZ (real), δg0 (real), δM (complex), δm = δM·ν, m·δg0
+  interface TermTables { kz: Float64Array; nxr: Float64Array; nxi: Float64Array; sxr: Float64Array; sxi: Float64Array; x2r: Float64Array; x2i: Float64Array; nyr: Float64Array; nyi: Float64Array; syr: Float64Array; syi: Float64Array; poly: Polynomial2D }
+  const termTables: TermTables[] = [];
+  for (const jz of terms) {
+    const tp = zernikePolynomialM([{ j: jz, value: 1 }], setup.zernikeRadiusM, lambda);
+    const kz = new Float64Array(n);
+    const tt: TermTables = { kz, poly: tp, nxr: mkX(), nxi: mkX(), sxr: mkX(), sxi: mkX(), x2r: mkX(), x2i: mkX(), nyr: mkY(), nyi: mkY(), syr: mkY(), syi: mkY() };
+    const d = emptyDerivs();
+    const dmv = new Float64Array(4 * n); // δm x re/im, y re/im
+    const dM = new Float64Array(6 * n);
+    const mdg = new Float64Array(2 * n);
+    const dg = new Float64Array(2 * n);
+    for (let j = 0; j < n; j++) {
+      const p = edgePoint(setup.disc, j * dphi);
+      evalPolynomial(tp, p.x, p.y, d);
+      kz[j] = k * d.v;
+      const dgx = k * d.x, dgy = k * d.y;
+      dg[2 * j] = dgx; dg[2 * j + 1] = dgy;
+      // δH = k∇∇Z (real); δM = −M δH M
+      const hxx = k * d.xx, hxy = k * d.xy, hyy = k * d.yy;
+      const Mxx: [number, number] = [t.mxxr[j], t.mxxi[j]], Mxy: [number, number] = [t.mxyr[j], t.mxyi[j]], Myy: [number, number] = [t.myyr[j], t.myyi[j]];
+      // P = δH·M (2x2 complex): rows of δH times columns of M
+      const mul = (a: [number, number], b: [number, number]): [number, number] => [a[0] * b[0] - a[1] * b[1], a[0] * b[1] + a[1] * b[0]];
+      const sc = (s: number, a: [number, number]): [number, number] => [s * a[0], s * a[1]];
+      const add = (a: [number, number], b: [number, number]): [number, number] => [a[0] + b[0], a[1] + b[1]];
+      const p11 = add(sc(hxx, Mxx), sc(hxy, Mxy)), p12 = add(sc(hxx, Mxy), sc(hxy, Myy));
+      const p21 = add(sc(hxy, Mxx), sc(hyy, Mxy)), p22 = add(sc(hxy, Mxy), sc(hyy, Myy));
+      // δM = −M·P
+      const q11 = add(mul(Mxx, p11), mul(Mxy, p21)), q12 = add(mul(Mxx, p12), mul(Mxy, p22)), q22 = add(mul(Mxy, p12), mul(Myy, p22));
+      dM[6 * j] = -q11[0]; dM[6 * j + 1] = -q11[1]; dM[6 * j + 2] = -q12[0]; dM[6 * j + 3] = -q12[1]; dM[6 * j + 4] = -q22[0]; dM[6 * j + 5] = -q22[1];
+      const nux = p.dy, nuy = -p.dx;
+      dmv[4 * j] = dM[6 * j] * nux + dM[6 * j + 2] * nuy;
+      dmv[4 * j + 1] = dM[6 * j + 1] * nux + dM[6 * j + 3] * nuy;
+      dmv[4 * j + 2] = dM[6 * j + 2] * nux + dM[6 * j + 4] * nuy;
+      dmv[4 * j + 3] = dM[6 * j + 3] * nux + dM[6 * j + 5] * nuy;
+      mdg[2 * j] = t.mvxr[j] * dgx + t.mvyr[j] * dgy;
+      mdg[2 * j + 1] = t.mvxi[j] * dgx + t.mvyi[j] * dgy;
+    }
+    for (let ix = 0; ix < nx; ix++) {
+      for (let j = 0; j < n; j++) {
+        const o = ix * n + j;
+        const dr = dxr[o], di = dxi[o];
+        // NX = δm_x·dx + m·δg0
+        tt.nxr[o] = dmv[4 * j] * dr - dmv[4 * j + 1] * di + mdg[2 * j];
+        tt.nxi[o] = dmv[4 * j] * di + dmv[4 * j + 1] * dr + mdg[2 * j + 1];
+        // SX = δMxx·dx² + 2(δg0x·Mxx + δg0y·Mxy)·dx
+        const d2r = dr * dr - di * di, d2i = 2 * dr * di;
+        const cr = 2 * (dg[2 * j] * t.mxxr[j] + dg[2 * j + 1] * t.mxyr[j]);
+        const ci = 2 * (dg[2 * j] * t.mxxi[j] + dg[2 * j + 1] * t.mxyi[j]);
+        tt.sxr[o] = dM[6 * j] * d2r - dM[6 * j + 1] * d2i + cr * dr - ci * di;
+        tt.sxi[o] = dM[6 * j] * d2i + dM[6 * j + 1] * d2r + cr * di + ci * dr;
+        tt.x2r[o] = 2 * (dM[6 * j + 2] * dr - dM[6 * j + 3] * di);
+        tt.x2i[o] = 2 * (dM[6 * j + 2] * di + dM[6 * j + 3] * dr);
+      }
+    }
+    for (let iy = 0; iy < ny; iy++) {
+      for (let j = 0; j < n; j++) {
+        const o = iy * n + j;
+        const dr = dyr[o], di = dyi[o];
+        tt.nyr[o] = dmv[4 * j + 2] * dr - dmv[4 * j + 3] * di;
+        tt.nyi[o] = dmv[4 * j + 2] * di + dmv[4 * j + 3] * dr;
+        const d2r = dr * dr - di * di, d2i = 2 * dr * di;
+        const cr = 2 * (dg[2 * j] * t.mxyr[j] + dg[2 * j + 1] * t.myyr[j]);
+        const ci = 2 * (dg[2 * j] * t.mxyi[j] + dg[2 * j + 1] * t.myyi[j]);
+        tt.syr[o] = dM[6 * j + 4] * d2r - dM[6 * j + 5] * d2i + cr * dr - ci * di;
+        tt.syi[o] = dM[6 * j + 4] * d2i + dM[6 * j + 5] * d2r + cr * di + ci * dr;
+      }
+    }
+    termTables.push(tt);
+  }
+
+  const termPolys = terms.map((jz) => ({
+    plus: wavefrontPolynomial(lambda, setup.zernikeRadiusM, [...aberrations, { j: jz, waves: 1e-5 }]),
+    minus: wavefrontPolynomial(lambda, setup.zernikeRadiusM, [...aberrations, { j: jz, waves: -1e-5 }]),
+  }));
+  // --- main loop
+  const acc = new Float64Array(2 * np);
+  const wantCenter = !!options.centerDerivatives;
+  const nTerms = terms.length;
+  const ctx: SaddleContext = { k, lpM: lp, gamma: 1 / (k * setup.beam.radiusM ** 2), cx: setup.beam.centerM[0], cy: setup.beam.centerM[1], poly };
+  const sad = newSaddleResult();
+  const invalid = new Uint8Array(nx * ny);
+  let invalidCount = 0;
+  const rd = emptyDerivs();
+  const pre = 1 / (lambda * L); // |1/(iλL)|; the factor 1/i is applied at the end
+
+  for (let iy = 0; iy < ny; iy++) {
+    const yo = iy * n;
+    for (let ix = 0; ix < nx; ix++) {
+      const xo = ix * n;
+      let sr = 0, si = 0;
+      if (np) acc.fill(0);
+      for (let j = 0; j < n; j++) {
+        const a = xo + j, b = yo + j;
+        // E = AX·EY
+        const er = axr[a] * eyr[b] - axi[a] * eyi[b];
+        const ei = axr[a] * eyi[b] + axi[a] * eyr[b];
+        // numerator and denominator
+        const nr = ndxr[a] + ndyr[b], ni = ndxi[a] + ndyi[b];
+        const ddr = sxxr[a] + syyr[b] + x2r[a] * dyr[b] - x2i[a] * dyi[b];
+        const ddi = sxxi[a] + syyi[b] + x2r[a] * dyi[b] + x2i[a] * dyr[b];
+        const den = ddr * ddr + ddi * ddi;
+        const isr = ddr / den, isi = -ddi / den; // 1/s
+        const qr = nr * isr - ni * isi, qi = nr * isi + ni * isr; // q = n/s
+        // h = E·q/i = E·q·(−i)
+        const hr = er * qi + ei * qr - 0; // (er+i ei)(qr+i qi) = (er qr − ei qi) + i(er qi + ei qr); times −i → (er qi + ei qr) − i(er qr − ei qi)
+        const hi = -(er * qr - ei * qi);
+        sr += hr;
+        si += hi;
+        if (np) {
+          for (let tI = 0; tI < nTerms; tI++) {
+            const tt = termTables[tI];
+            // δn, δs
+            const dnr = tt.nxr[a] + tt.nyr[b], dni = tt.nxi[a] + tt.nyi[b];
+            const dsr = tt.sxr[a] + tt.syr[b] + tt.x2r[a] * dyr[b] - tt.x2i[a] * dyi[b];
+            const dsi = tt.sxi[a] + tt.syi[b] + tt.x2r[a] * dyi[b] + tt.x2i[a] * dyr[b];
+            // (δn − q·δs)/s
+            const ur = dnr - (qr * dsr - qi * dsi), ui = dni - (qr * dsi + qi * dsr);
+            let vr = ur * isr - ui * isi, vi = ur * isi + ui * isr;
+            // + i·kZ·q
+            const kz = tt.kz[j];
+            vr += -kz * qi;
+            vi += kz * qr;
+            // δh = E·v·(−i)
+            acc[2 * tI] += er * vi + ei * vr;
+            acc[2 * tI + 1] += -(er * vr - ei * vi);
+          }
+          if (wantCenter) {
+            // ∂/∂Fx: E' = E·(−ik(Qx−Fx)/L'), δn = −κ m_x, δs = −2κ(Mxx dx + Mxy dy)
+            for (let c = 0; c < 2; c++) {
+              const isX = c === 0;
+              const qv = isX ? t.qx[j] - fxs[ix] : t.qy[j] - fys[iy];
+              const mvr = isX ? t.mvxr[j] : t.mvyr[j], mvi = isX ? t.mvxi[j] : t.mvyi[j];
+              const m1r = isX ? t.mxxr[j] : t.mxyr[j], m1i = isX ? t.mxxi[j] : t.mxyi[j];
+              const m2r = isX ? t.mxyr[j] : t.myyr[j], m2i = isX ? t.mxyi[j] : t.myyi[j];
+              const dnr = -kap * mvr, dni = -kap * mvi;
+              const xr = dxr[a], xi = dxi[a], yr = dyr[b], yi = dyi[b];
+              const dsr = -2 * kap * (m1r * xr - m1i * xi + m2r * yr - m2i * yi);
+              const dsi = -2 * kap * (m1r * xi + m1i * xr + m2r * yi + m2i * yr);
+              const ur = dnr - (qr * dsr - qi * dsi), ui = dni - (qr * dsi + qi * dsr);
+              let vr = ur * isr - ui * isi, vi = ur * isi + ui * isr;
+              const ph = (-k * qv) / lp; // E' = E·(i·ph)
+              vr += -ph * qi;
+              vi += ph * qr;
+              acc[2 * (nTerms + c)] += er * vi + ei * vr;
+              acc[2 * (nTerms + c) + 1] += -(er * vr - ei * vi);
+            }
+          }
+        }
+      }
+      // ∫∫_outside = −Δφ·Σh − Σ_near R·π·cot(Np/2) + U_all·(n_far_out/2 + n_near/4)
+      let totR = -dphi * sr, totI = -dphi * si;
+      const fx = fxs[ix], fy = fys[iy];
+      const pix = iy * nx + ix;
+      // Deep inside the shadow both singular points lie well inside the disc: no free-beam term.
+      evalPolynomial(poly, fx, fy, rd);
+      const q0x = fx - lp * rd.x, q0y = fy - lp * rd.y;
+      const rim0 = edgeRadius(setup.disc, Math.atan2(q0y, q0x)).r;
+      const slack = 0.02 * rim0 + 2 * lp * ctx.gamma * Math.hypot(fx - ctx.cx, fy - ctx.cy);
+      if (Math.hypot(q0x, q0y) < rim0 * (1 - 30 / n) - slack) {
+        // nothing to add
+      } else {
+        const e0 = edgePart(setup, ctx, fx, fy, n, sad);
+        if (!e0) {
+          invalid[pix] = 1;
+          invalidCount++;
+        } else {
+          totR += e0[0];
+          totI += e0[1];
+          if (np) {
+            // Derivatives of the free-beam and pole terms by central differences of this part alone
+            // (the rim sum above is differentiated analytically).
+            for (let p = 0; p < np; p++) {
+              let plus: [number, number] | null, minus: [number, number] | null, step: number;
+              if (p < nTerms) {
+                step = 1e-5;
+                plus = edgePart(setup, { ...ctx, poly: termPolys[p].plus }, fx, fy, n, sad);
+                minus = edgePart(setup, { ...ctx, poly: termPolys[p].minus }, fx, fy, n, sad);
+              } else {
+                step = 1e-9 * setup.disc.radiusM / 1e-3; // metres in F
+                const c = p - nTerms;
+                plus = edgePart(setup, ctx, fx + (c === 0 ? step : 0), fy + (c === 1 ? step : 0), n, sad);
+                minus = edgePart(setup, ctx, fx - (c === 0 ? step : 0), fy - (c === 1 ? step : 0), n, sad);
+              }
+              if (plus && minus) {
+                // acc holds Σ of rim-derivative terms that are later scaled by −Δφ
+                acc[2 * p] -= (plus[0] - minus[0]) / (2 * step) / dphi;
+                acc[2 * p + 1] -= (plus[1] - minus[1]) / (2 * step) / dphi;
+              }
+            }
+          }
+        }
+      }
+      // U = tot/(iλL) = −i·tot/(λL)
+      outRe[pix] = pre * totI;
+      outIm[pix] = -pre * totR;
+      for (let p = 0; p < np; p++) {
+        // the rim sums were accumulated without −Δφ; chain rule for the camera point: dF/dP = L'/L
+        const scale = p >= nTerms ? lp / L : 1;
+        const vr = -dphi * acc[2 * p] * scale, vi = -dphi * acc[2 * p + 1] * scale;
+        dRe[p][pix] = pre * vi;
+        dIm[p][pix] = -pre * vr;
+      }
+    }
+  }
+  return { nx, ny, re: outRe, im: outIm, params, dRe, dIm, nPhi: n, invalid, invalidCount };
+}
+
+/** Free-beam and pole terms for one camera point: U_all·(n_far_out/2 + n_near/4) − Σ_near R·π·cot(Np/2). */
+function edgePart(setup: BenchSetup, ctx: SaddleContext, fx: number, fy: number, n: number, sad: SaddleResult): [number, number] | null {
+  if (!solveSaddle(ctx, fx, fy, sad).ok) return null;
+  let cr = 0, ci = 0;
+  const weight = singularWeight(setup, sad, n, (rr, ri) => {
+    cr += rr;
+    ci += ri;
+  });
+  return [weight * sad.allRe - cr, weight * sad.allIm - ci];
+}
+
+/**
+ * Weight of the free beam U_all for one camera point (½ per singular point outside the disc, ¼ per
+ * singular point close to the rim), and the closed-form pole corrections for the close ones, which
+ * are passed to `addCorrection` as R·π·cot(Np/2).
+ */
+function singularWeight(
+  setup: BenchSetup,
+  sad: SaddleResult,
+  n: number,
+  addCorrection: (re: number, im: number) => void,
+): number {
+  const h = sad.h;
+  const h11r = h[0], h11i = h[1], h12r = h[2], h12i = h[3], h22r = h[4], h22i = h[5];
+  // roots t of H11 t² + 2 H12 t + H22 = 0
+  const discR = h12r * h12r - h12i * h12i - (h11r * h22r - h11i * h22i);
+  const discI = 2 * h12r * h12i - (h11r * h22i + h11i * h22r);
+  const m = Math.hypot(discR, discI);
+  let sqr = Math.sqrt(Math.max(0, (m + discR) / 2));
+  let sqi = Math.sqrt(Math.max(0, (m - discR) / 2));
+  if (discI < 0) sqi = -sqi;
+  const h11m = h11r * h11r + h11i * h11i;
+  const roots: [number, number][] = [];
+  for (const sgn of [1, -1]) {
+    const nr = -h12r + sgn * sqr, ni = -h12i + sgn * sqi;
+    roots.push([(nr * h11r + ni * h11i) / h11m, (ni * h11r - nr * h11i) / h11m]);
+  }
+  const [Ax, Bx, Ay, By] = [sad.q[0], sad.q[1], sad.q[2], sad.q[3]];
+  let weight = 0;
+  for (let r = 0; r < 2; r++) {
+    const [tr, ti] = roots[r];
+    const [or, oi] = roots[1 - r];
+    if (Math.abs(ti) < 1e-12) continue; // degenerate; cannot happen with a Gaussian amplitude
+    const u = (tr * By - Bx) / ti;
+    const qsx = Ax + tr * u + ti * By;
+    const qsy = Ay + u;
+    const theta = Math.atan2(qsy, qsx);
+    const { r: rEdge } = edgeRadius(setup.disc, theta);
+    const excess = Math.hypot(qsx, qsy) - rEdge;
+    if (Math.abs(excess) * n > 25 * rEdge) {
+      if (excess > 0) weight += 0.5;
+      continue;
+    }
+    // pole p: (Qx(p) − Q*x) − t·(Qy(p) − Q*y) = 0, Newton in complex φ
+    let pr = theta, pi = 0;
+    let okNewton = false;
+    for (let it = 0; it < 30; it++) {
+      const e = edgePointComplex(setup.disc, pr, pi);
+      const fr = e[0] - Ax - (tr * (e[2] - Ay) - ti * (e[3] - By));
+      const fi = e[1] - Bx - (tr * (e[3] - By) + ti * (e[2] - Ay));
+      const dr = e[4] - (tr * e[6] - ti * e[7]);
+      const di = e[5] - (tr * e[7] + ti * e[6]);
+      const dd = dr * dr + di * di;
+      const sr = (fr * dr + fi * di) / dd, si = (fi * dr - fr * di) / dd;
+      pr -= sr;
+      pi -= si;
+      if (Math.hypot(sr, si) < 1e-14) {
+        okNewton = true;
+        break;
+      }
+    }
+    if (!okNewton || Math.abs(pi) * n > 10) {
+      if (excess > 0) weight += 0.5;
+      continue;
+    }
+    weight += 0.25;
+    // residue R = e^{iΦ0}·(z·ν)/(i·s'(p)), s = H11·f_t·f_o, s' = H11·f_t'·f_o
+    const e = edgePointComplex(setup.disc, pr, pi);
+    const zxr = e[0] - Ax, zxi = e[1] - Bx, zyr = e[2] - Ay, zyi = e[3] - By;
+    // ν = (Q'y, −Q'x)
+    const nuxr = e[6], nuxi = e[7], nuyr = -e[4], nuyi = -e[5];
+    const znr = zxr * nuxr - zxi * nuxi + zyr * nuyr - zyi * nuyi;
+    const zni = zxr * nuxi + zxi * nuxr + zyr * nuyi + zyi * nuyr;
+    const ftr = e[4] - (tr * e[6] - ti * e[7]);
+    const fti = e[5] - (tr * e[7] + ti * e[6]);
+    const fOr = zxr - (or * zyr - oi * zyi);
+    const fOi = zxi - (or * zyi + oi * zyr);
+    // s' = H11·ft'·fo
+    const ar = ftr * fOr - fti * fOi, ai = ftr * fOi + fti * fOr;
+    const spr = h11r * ar - h11i * ai, spi = h11r * ai + h11i * ar;
+    // i·s'
+    const isr = -spi, isi = spr;
+    const den = isr * isr + isi * isi;
+    const qr = (znr * isr + zni * isi) / den, qi = (zni * isr - znr * isi) / den;
+    const mag = Math.exp(sad.expRe);
+    const epr = mag * Math.cos(sad.expIm), epi = mag * Math.sin(sad.expIm);
+    const Rr = epr * qr - epi * qi, Ri = epr * qi + epi * qr;
+    const [cr, ci] = cotComplex((n * pr) / 2, (n * pi) / 2);
+    addCorrection(Math.PI * (Rr * cr - Ri * ci), Math.PI * (Rr * ci + Ri * cr));
+  }
+  return weight;
+}
+
+/** |U|² relative to the incident peak intensity at the disc plane. */
+export function fastIntensity(setup: BenchSetup, aberrations: readonly ZernikeTerm[], xsM: Float64Array, ysM: Float64Array, options: FastModelOptions = {}): Float64Array {
+  const f = fastField(setup, aberrations, xsM, ysM, options);
+  const out = new Float64Array(f.re.length);
+  for (let i = 0; i < out.length; i++) out[i] = f.re[i] * f.re[i] + f.im[i] * f.im[i];
+  return out;
+}

@@ -1,0 +1,372 @@
+/**
+ * The free (unobstructed) beam term of the Babinet split,
+ *
+ *     S_all(P) = ∫∫_{R²} g(Q) · e^{i k κ |Q|²/2} · e^{−i k Q·P / L} d²Q,   g = A · e^{iψ},
+ *
+ * (the P-only phase and the 1/(iλL) factor are applied by the caller).
+ *
+ * Two routes:
+ *  - closed form, when the aberration phase ψ is a separable quadratic (piston, tilts, defocus,
+ *    vertical astigmatism — any ψ = p(x) + q(y) with deg p, q ≤ 2): the integrand factorises into
+ *    two 1-D complex Gaussians, ∫ exp(−A x² + B x + C) dx = √(π/A)·exp(B²/(4A) + C), Re A > 0;
+ *  - otherwise a 2-D trapezoid rule on a uniform grid centred on the beam axis, truncated where
+ *    the amplitude falls below ε, with spacing chosen so that every alias of the chirped integrand
+ *    lands outside the grid (spectral accuracy), evaluated as a separable matrix product.
+ */
+import type { DerivedScene } from './scene.ts';
+import type { ProgressMeter } from './progress.ts';
+
+export interface QuadraticSplit {
+  /** ψ(x, 0) = px[0] + px[1]·x + px[2]·x²  (x in metres, radians). */
+  px: [number, number, number];
+  /** ψ(0, y) − ψ(0, 0) = py[1]·y + py[2]·y². */
+  py: [number, number, number];
+}
+
+/**
+ * Detects ψ(x, y) = p(x) + q(y) with p, q quadratic by exact three-point fits on the axes and a
+ * check at off-axis probe points. Returns null for any other wavefront.
+ */
+export function separableQuadratic(scene: DerivedScene, zernikeRadiusM: number): QuadraticSplit | null {
+  const wf = scene.wavefront;
+  if (wf.isZero) return { px: [0, 0, 0], py: [0, 0, 0] };
+  const s = zernikeRadiusM;
+  const f0 = wf.phaseRad(0, 0);
+  const fxp = wf.phaseRad(s, 0);
+  const fxm = wf.phaseRad(-s, 0);
+  const fyp = wf.phaseRad(0, s);
+  const fym = wf.phaseRad(0, -s);
+  const px: [number, number, number] = [f0, (fxp - fxm) / (2 * s), (fxp + fxm - 2 * f0) / (2 * s * s)];
+  const py: [number, number, number] = [0, (fyp - fym) / (2 * s), (fyp + fym - 2 * f0) / (2 * s * s)];
+  const probes = [
+    [0.37, -0.81],
+    [-1.3, 0.55],
+    [2.1, 1.7],
+    [-0.6, -2.4],
+    [3.1, 0],
+    [0, -2.9],
+    [-2.2, 2.6],
+    [0.5, 0],
+  ];
+  let scale = Math.max(1, Math.abs(f0), Math.abs(fxp), Math.abs(fyp));
+  let worst = 0;
+  for (const [u, v] of probes) {
+    const x = u * s;
+    const y = v * s;
+    const exact = wf.phaseRad(x, y);
+    const model = px[0] + px[1] * x + px[2] * x * x + py[1] * y + py[2] * y * y;
+    scale = Math.max(scale, Math.abs(exact));
+    worst = Math.max(worst, Math.abs(exact - model));
+  }
+  return worst <= 1e-9 * scale ? { px, py } : null;
+}
+
+/**
+ * One axis of the closed form: out[f] = ∫ exp(−(x−c)²/w² + i(p0 + p1 x + p2 x²) + i k κ x²/2 − i (k/L) x P_f) dx.
+ */
+function gaussianAxis(
+  P: Float64Array,
+  c: number,
+  w: number,
+  k: number,
+  kappa: number,
+  kOverL: number,
+  p: readonly [number, number, number],
+  outRe: Float64Array,
+  outIm: Float64Array,
+): void {
+  const ar = 1 / (w * w);
+  const ai = -(0.5 * k * kappa + p[2]);
+  const a2 = ar * ar + ai * ai;
+  // π/A and its principal square root (Re(π/A) > 0).
+  const qr = (Math.PI * ar) / a2;
+  const qi = (-Math.PI * ai) / a2;
+  const qm = Math.hypot(qr, qi);
+  const sr = Math.sqrt(0.5 * (qm + qr));
+  const si = Math.sign(qi) * Math.sqrt(0.5 * (qm - qr));
+  // 1/(4A)
+  const ir = ar / (4 * a2);
+  const ii = -ai / (4 * a2);
+  const br = (2 * c) / (w * w);
+  const cr = -(c * c) / (w * w);
+  const ci = p[0];
+  for (let f = 0; f < P.length; f++) {
+    const bi = p[1] - kOverL * P[f];
+    const b2r = br * br - bi * bi;
+    const b2i = 2 * br * bi;
+    const er = b2r * ir - b2i * ii + cr;
+    const ei = b2r * ii + b2i * ir + ci;
+    const mag = Math.exp(er);
+    const zr = mag * Math.cos(ei);
+    const zi = mag * Math.sin(ei);
+    outRe[f] = sr * zr - si * zi;
+    outIm[f] = sr * zi + si * zr;
+  }
+}
+
+/** Adds the closed-form free beam to S (row-major, rows = ys). */
+export function addAnalyticFreeBeam(
+  scene: DerivedScene,
+  split: QuadraticSplit,
+  xs: Float64Array,
+  ys: Float64Array,
+  sRe: Float64Array,
+  sIm: Float64Array,
+): void {
+  const nx = xs.length;
+  const ny = ys.length;
+  const kOverL = scene.k / scene.distanceM;
+  const axRe = new Float64Array(nx);
+  const axIm = new Float64Array(nx);
+  const ayRe = new Float64Array(ny);
+  const ayIm = new Float64Array(ny);
+  gaussianAxis(xs, scene.beamCenterXM, scene.beamRadiusM, scene.k, scene.kappa, kOverL, split.px, axRe, axIm);
+  gaussianAxis(ys, scene.beamCenterYM, scene.beamRadiusM, scene.k, scene.kappa, kOverL, split.py, ayRe, ayIm);
+  for (let fy = 0; fy < ny; fy++) {
+    const yr = ayRe[fy];
+    const yi = ayIm[fy];
+    const row = fy * nx;
+    for (let fx = 0; fx < nx; fx++) {
+      sRe[row + fx] += yr * axRe[fx] - yi * axIm[fx];
+      sIm[row + fx] += yr * axIm[fx] + yi * axRe[fx];
+    }
+  }
+}
+
+export interface NumericGridInfo {
+  /** Grid points per axis (x, y). */
+  pointsX: number;
+  pointsY: number;
+  /** Grid spacing (x, y), metres. */
+  spacingXM: number;
+  spacingYM: number;
+  /** Half-width of the truncation disc around the beam axis, metres. */
+  truncationRadiusM: number;
+}
+
+export interface NumericGridPlan extends NumericGridInfo {
+  /** Half counts (nodes at ±(i + 1/2)·h). */
+  halfX: number;
+  halfY: number;
+}
+
+/** Amplitude below which the beam is truncated, per accuracy level. */
+const TRUNCATION = { normal: 1e-7, high: 1e-10 } as const;
+/** Factor by which the sampling frequency exceeds the highest local frequency of the integrand. */
+const MARGIN = { normal: 1.1, high: 1.3 } as const;
+
+/** Chooses the grid for the trapezoid route; throws a RangeError when it would exceed maxPerAxis. */
+export function planNumericGrid(
+  scene: DerivedScene,
+  xs: Float64Array,
+  ys: Float64Array,
+  accuracy: 'normal' | 'high',
+  nodeScale: number,
+  maxPerAxis: number,
+): NumericGridPlan {
+  const { wavelengthM: lambda, kappa, beamRadiusM: w, beamCenterXM: cx, beamCenterYM: cy, distanceM: L } = scene;
+  const lnInv = Math.log(1 / TRUNCATION[accuracy]);
+  const Xg = w * Math.sqrt(lnInv);
+  const gPsi = scene.wavefront.maxGradient(cx, cy, Xg) / (2 * Math.PI);
+  const env = Math.sqrt(lnInv) / (Math.PI * w);
+  const axisFreq = (c: number, P: Float64Array): number => {
+    let pmin = Infinity;
+    let pmax = -Infinity;
+    for (let i = 0; i < P.length; i++) {
+      if (P[i] < pmin) pmin = P[i];
+      if (P[i] > pmax) pmax = P[i];
+    }
+    let lin = 0;
+    for (const q of [c - Xg, c + Xg]) for (const p of [pmin, pmax]) lin = Math.max(lin, Math.abs(kappa * q - p / L));
+    return lin / lambda + gPsi + env;
+  };
+  const hx = 1 / (MARGIN[accuracy] * axisFreq(cx, xs) * nodeScale);
+  const hy = 1 / (MARGIN[accuracy] * axisFreq(cy, ys) * nodeScale);
+  const halfX = Math.ceil(Xg / hx + 0.5);
+  const halfY = Math.ceil(Xg / hy + 0.5);
+  if (2 * halfX > maxPerAxis || 2 * halfY > maxPerAxis) {
+    throw new RangeError(
+      `reference model: the free-beam grid would need ${2 * halfX} × ${2 * halfY} points (limit ${maxPerAxis} per axis). ` +
+        `The chirp of the beam over its ${(2 * Xg * 1e3).toFixed(1)} mm truncated width is too fine to sample: ` +
+        `reduce the beam radius, the aberration (non-separable terms), the curvature 1/L' = 1/L + 1/R, or the extent of the camera points.`,
+    );
+  }
+  return { pointsX: 2 * halfX, pointsY: 2 * halfY, spacingXM: hx, spacingYM: hy, truncationRadiusM: Xg, halfX, halfY };
+}
+
+/** Work units of the trapezoid route, for progress reporting. */
+export function numericWork(plan: NumericGridPlan, nx: number, ny: number): number {
+  return plan.halfY * (0.8 * plan.halfX * nx * 2 + nx * ny);
+}
+
+/**
+ * Adds the trapezoid-rule free beam to S. Nodes sit at Q = c + (±(i+½)hx, ±(j+½)hy); the four
+ * mirror images of each (u, v) share one cos/sin table, and mirrored rows share one pass.
+ */
+export function addNumericFreeBeam(
+  scene: DerivedScene,
+  plan: NumericGridPlan,
+  xs: Float64Array,
+  ys: Float64Array,
+  sRe: Float64Array,
+  sIm: Float64Array,
+  progress: ProgressMeter,
+): void {
+  const nx = xs.length;
+  const ny = ys.length;
+  const { k, kappa, beamRadiusM: w, beamCenterXM: cx, beamCenterYM: cy, distanceM: L } = scene;
+  const kOverL = k / L;
+  const { halfX: Mx, halfY: My, spacingXM: hx, spacingYM: hy, truncationRadiusM: Xg } = plan;
+  const wf = scene.wavefront;
+  const invW2 = 1 / (w * w);
+  const halfKKappa = 0.5 * k * kappa;
+  const rCut = Xg * 1.02 + Math.max(hx, hy);
+
+  // Block accumulator, later multiplied by the offset phase e^{−i k c·P / L}.
+  const bRe = new Float64Array(nx * ny);
+  const bIm = new Float64Array(nx * ny);
+
+  // Per-x-node data (independent of the row).
+  const u = new Float64Array(Mx);
+  const gxp = new Float64Array(2 * Mx); // e^{i k κ (cx + u)²/2}
+  const gxm = new Float64Array(2 * Mx); // e^{i k κ (cx − u)²/2}
+  for (let i = 0; i < Mx; i++) {
+    const ui = (i + 0.5) * hx;
+    u[i] = ui;
+    const pp = halfKKappa * (cx + ui) * (cx + ui);
+    const pm = halfKKappa * (cx - ui) * (cx - ui);
+    gxp[2 * i] = Math.cos(pp);
+    gxp[2 * i + 1] = Math.sin(pp);
+    gxm[2 * i] = Math.cos(pm);
+    gxm[2 * i + 1] = Math.sin(pm);
+  }
+
+  const cpsR = new Float64Array(Mx);
+  const cpsI = new Float64Array(Mx);
+  const cmsR = new Float64Array(Mx);
+  const cmsI = new Float64Array(Mx);
+  const cpdR = new Float64Array(Mx);
+  const cpdI = new Float64Array(Mx);
+  const cmdR = new Float64Array(Mx);
+  const cmdI = new Float64Array(Mx);
+  const cosEta = new Float64Array(ny);
+  const sinEta = new Float64Array(ny);
+
+  // Column chunks keep the cos/sin table below ~2^22 entries each.
+  const chunk = Math.max(1, Math.min(nx, Math.floor((1 << 22) / Mx)));
+  const cosL = new Float64Array(chunk * Mx);
+  const sinL = new Float64Array(chunk * Mx);
+  const dR = new Float64Array(chunk);
+  const dI = new Float64Array(chunk);
+  const eR = new Float64Array(chunk);
+  const eI = new Float64Array(chunk);
+
+  for (let f0 = 0; f0 < nx; f0 += chunk) {
+    const f1 = Math.min(nx, f0 + chunk);
+    const nc = f1 - f0;
+    for (let f = 0; f < nc; f++) {
+      const px = kOverL * xs[f0 + f];
+      const base = f * Mx;
+      for (let i = 0; i < Mx; i++) {
+        const l = px * u[i];
+        cosL[base + i] = Math.cos(l);
+        sinL[base + i] = Math.sin(l);
+      }
+    }
+    for (let j = 0; j < My; j++) {
+      const v = (j + 0.5) * hy;
+      if (v > rCut) break;
+      const half = Math.sqrt(rCut * rCut - v * v);
+      const iLim = Math.min(Mx, Math.max(0, Math.ceil(half / hx - 0.5)));
+      const yp = cy + v;
+      const ym = cy - v;
+      const phYp = halfKKappa * yp * yp;
+      const phYm = halfKKappa * ym * ym;
+      const ev = Math.exp(-v * v * invW2) * hx * hy;
+      for (let i = 0; i < iLim; i++) {
+        const ui = u[i];
+        const amp = ev * Math.exp(-ui * ui * invW2);
+        const xp = cx + ui;
+        const xm = cx - ui;
+        // Phases of the four nodes (chirp + aberration); the amplitude is common to all four.
+        const ppx = halfKKappa * xp * xp;
+        const pmx = halfKKappa * xm * xm;
+        const a1 = ppx + phYp + wf.phaseRad(xp, yp); // (+u, +v)
+        const a2 = pmx + phYp + wf.phaseRad(xm, yp); // (−u, +v)
+        const a3 = ppx + phYm + wf.phaseRad(xp, ym); // (+u, −v)
+        const a4 = pmx + phYm + wf.phaseRad(xm, ym); // (−u, −v)
+        const c1r = amp * Math.cos(a1), c1i = amp * Math.sin(a1);
+        const c2r = amp * Math.cos(a2), c2i = amp * Math.sin(a2);
+        const c3r = amp * Math.cos(a3), c3i = amp * Math.sin(a3);
+        const c4r = amp * Math.cos(a4), c4i = amp * Math.sin(a4);
+        // Cp(±v) = c(+u) + c(−u), Cm(±v) = c(+u) − c(−u); S = (+v) + (−v), D = (+v) − (−v).
+        const pPr = c1r + c2r, pPi = c1i + c2i, mPr = c1r - c2r, mPi = c1i - c2i;
+        const pMr = c3r + c4r, pMi = c3i + c4i, mMr = c3r - c4r, mMi = c3i - c4i;
+        cpsR[i] = pPr + pMr;
+        cpsI[i] = pPi + pMi;
+        cmsR[i] = mPr + mMr;
+        cmsI[i] = mPi + mMi;
+        cpdR[i] = pPr - pMr;
+        cpdI[i] = pPi - pMi;
+        cmdR[i] = mPr - mMr;
+        cmdI[i] = mPi - mMi;
+      }
+      // Row sums for every column of the chunk: Σ_i cosℓ·Cp − i·sinℓ·Cm.
+      for (let f = 0; f < nc; f++) {
+        const base = f * Mx;
+        let sr = 0, si = 0, tr = 0, ti = 0;
+        for (let i = 0; i < iLim; i++) {
+          const c = cosL[base + i];
+          const s = sinL[base + i];
+          sr += c * cpsR[i] + s * cmsI[i];
+          si += c * cpsI[i] - s * cmsR[i];
+          tr += c * cpdR[i] + s * cmdI[i];
+          ti += c * cpdI[i] - s * cmdR[i];
+        }
+        dR[f] = sr;
+        dI[f] = si;
+        eR[f] = tr;
+        eI[f] = ti;
+      }
+      // Mirrored rows: e^{∓iη}, η = k v P_y / L → cosη·D − i·sinη·E.
+      const pv = kOverL * v;
+      for (let fy = 0; fy < ny; fy++) {
+        const eta = pv * ys[fy];
+        cosEta[fy] = Math.cos(eta);
+        sinEta[fy] = Math.sin(eta);
+      }
+      for (let fy = 0; fy < ny; fy++) {
+        const c = cosEta[fy];
+        const s = sinEta[fy];
+        const row = fy * nx + f0;
+        for (let f = 0; f < nc; f++) {
+          bRe[row + f] += c * dR[f] + s * eI[f];
+          bIm[row + f] += c * dI[f] - s * eR[f];
+        }
+      }
+      progress.advance(iLim * nc * 2 + nc * ny);
+    }
+  }
+  // Offset phase of the grid centre.
+  const oxR = new Float64Array(nx);
+  const oxI = new Float64Array(nx);
+  for (let fx = 0; fx < nx; fx++) {
+    const p = -kOverL * cx * xs[fx];
+    oxR[fx] = Math.cos(p);
+    oxI[fx] = Math.sin(p);
+  }
+  for (let fy = 0; fy < ny; fy++) {
+    const p = -kOverL * cy * ys[fy];
+    const yr = Math.cos(p);
+    const yi = Math.sin(p);
+    const row = fy * nx;
+    for (let fx = 0; fx < nx; fx++) {
+      const or = yr * oxR[fx] - yi * oxI[fx];
+      const oi = yr * oxI[fx] + yi * oxR[fx];
+      const br = bRe[row + fx];
+      const bi = bIm[row + fx];
+      sRe[row + fx] += br * or - bi * oi;
+      sIm[row + fx] += br * oi + bi * or;
+    }
+  }
+}
