@@ -46,45 +46,45 @@ export function radialExcess(disc: DiscSpec, x: number, y: number): number {
   return Math.hypot(x, y) - edgeRadius(disc, Math.atan2(y, x)).r;
 }
 
-// Complex helpers (re, im) for the analytic continuation of the edge curve.
-function ccos(re: number, im: number): [number, number] {
-  return [Math.cos(re) * Math.cosh(im), -Math.sin(re) * Math.sinh(im)];
-}
-function csin(re: number, im: number): [number, number] {
-  return [Math.sin(re) * Math.cosh(im), Math.cos(re) * Math.sinh(im)];
-}
+const edgeScratch = new Float64Array(8);
 
-/** Edge point Q(θ) and Q'(θ) for complex θ = tr + i·ti. Returns [Qx, Qy, Q'x, Q'y] as (re, im) pairs. */
-export function edgePointComplex(disc: DiscSpec, tr: number, ti: number): Float64Array {
+/**
+ * Edge point Q(θ) and Q'(θ) for complex θ = tr + i·ti: [Qx, Qy, Q'x, Q'y] as (re, im) pairs.
+ * Writes into `out` (default: a shared scratch array, overwritten by the next call).
+ */
+export function edgePointComplex(disc: DiscSpec, tr: number, ti: number, out: Float64Array = edgeScratch): Float64Array {
   const a = disc.radiusM;
   const e = disc.ellipticity;
-  // r and dr
-  const [c2r, c2i] = ccos(2 * (tr - disc.ellipseAngleRad), 2 * ti);
-  const [s2r, s2i] = csin(2 * (tr - disc.ellipseAngleRad), 2 * ti);
-  let rr = a * (1 + e * c2r);
-  let ri = a * e * c2i;
-  let drr = -2 * a * e * s2r;
-  let dri = -2 * a * e * s2i;
-  for (const h of disc.edgeHarmonics) {
-    const [cr, ci] = ccos(h.order * tr - h.phaseRad, h.order * ti);
-    const [sr, si] = csin(h.order * tr - h.phaseRad, h.order * ti);
-    rr += h.amplitudeM * cr;
-    ri += h.amplitudeM * ci;
-    drr -= h.amplitudeM * h.order * sr;
-    dri -= h.amplitudeM * h.order * si;
+  // cos(x+iy) = cos x cosh y − i sin x sinh y ; sin(x+iy) = sin x cosh y + i cos x sinh y
+  let rr = a, ri = 0, drr = 0, dri = 0;
+  if (e !== 0) {
+    const x = 2 * (tr - disc.ellipseAngleRad), y = 2 * ti;
+    const ch = Math.cosh(y), sh = Math.sinh(y), cx = Math.cos(x), sx = Math.sin(x);
+    rr += a * e * cx * ch;
+    ri += -a * e * sx * sh;
+    drr += -2 * a * e * sx * ch;
+    dri += -2 * a * e * cx * sh;
   }
-  const [cr, ci] = ccos(tr, ti);
-  const [sr, si] = csin(tr, ti);
-  const out = new Float64Array(8);
+  for (const h of disc.edgeHarmonics) {
+    const x = h.order * tr - h.phaseRad, y = h.order * ti;
+    const ch = Math.cosh(y), sh = Math.sinh(y), cx = Math.cos(x), sx = Math.sin(x);
+    rr += h.amplitudeM * cx * ch;
+    ri += -h.amplitudeM * sx * sh;
+    drr -= h.amplitudeM * h.order * sx * ch;
+    dri -= h.amplitudeM * h.order * cx * sh;
+  }
+  const ch = Math.cosh(ti), sh = Math.sinh(ti), ct = Math.cos(tr), st = Math.sin(tr);
+  const cr = ct * ch, ci = -st * sh;
+  const sr = st * ch, si = ct * sh;
   // Qx = r·cos, Qy = r·sin
   out[0] = rr * cr - ri * ci;
   out[1] = rr * ci + ri * cr;
   out[2] = rr * sr - ri * si;
   out[3] = rr * si + ri * sr;
   // Q'x = dr·cos − r·sin ; Q'y = dr·sin + r·cos
-  out[4] = drr * cr - dri * ci - (rr * sr - ri * si);
-  out[5] = drr * ci + dri * cr - (rr * si + ri * sr);
-  out[6] = drr * sr - dri * si + (rr * cr - ri * ci);
-  out[7] = drr * si + dri * sr + (rr * ci + ri * cr);
+  out[4] = drr * cr - dri * ci - out[2];
+  out[5] = drr * ci + dri * cr - out[3];
+  out[6] = drr * sr - dri * si + out[0];
+  out[7] = drr * si + dri * sr + out[1];
   return out;
 }

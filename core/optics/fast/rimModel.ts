@@ -305,13 +305,41 @@ export function fastField(
   const rd = emptyDerivs();
   const pre = 1 / (lambda * L); // |1/(iλL)|; the factor 1/i is applied at the end
 
+  // Value-only frames take a lean kernel over interleaved tables (the common case in simulation and
+  // in the fit's function evaluations).
+  let rimRe: Float64Array | null = null;
+  let rimIm: Float64Array | null = null;
+  if (np === 0) {
+    const XT = new Float64Array(nx * n * 8);
+    for (let o = 0; o < nx * n; o++) {
+      const b = o * 8;
+      XT[b] = axr[o]; XT[b + 1] = axi[o]; XT[b + 2] = ndxr[o]; XT[b + 3] = ndxi[o];
+      XT[b + 4] = sxxr[o]; XT[b + 5] = sxxi[o]; XT[b + 6] = x2r[o]; XT[b + 7] = x2i[o];
+    }
+    const YT = new Float64Array(ny * n * 8);
+    for (let o = 0; o < ny * n; o++) {
+      const b = o * 8;
+      YT[b] = eyr[o]; YT[b + 1] = eyi[o]; YT[b + 2] = ndyr[o]; YT[b + 3] = ndyi[o];
+      YT[b + 4] = syyr[o]; YT[b + 5] = syyi[o]; YT[b + 6] = dyr[o]; YT[b + 7] = dyi[o];
+    }
+    rimRe = new Float64Array(nx * ny);
+    rimIm = new Float64Array(nx * ny);
+    rimSums(XT, YT, n, nx, ny, rimRe, rimIm);
+  }
+
+  const startQ = new Float64Array(4);
+  let haveStart = false;
   for (let iy = 0; iy < ny; iy++) {
     const yo = iy * n;
+    haveStart = false;
     for (let ix = 0; ix < nx; ix++) {
       const xo = ix * n;
       let sr = 0, si = 0;
       if (np) acc.fill(0);
-      for (let j = 0; j < n; j++) {
+      if (rimRe && rimIm) {
+        sr = rimRe[iy * nx + ix];
+        si = rimIm[iy * nx + ix];
+      } else for (let j = 0; j < n; j++) {
         const a = xo + j, b = yo + j;
         // E = AX·EY
         const er = axr[a] * eyr[b] - axi[a] * eyi[b];
@@ -381,7 +409,11 @@ export function fastField(
       if (Math.hypot(q0x, q0y) < rim0 * (1 - 30 / n) - slack) {
         // nothing to add
       } else {
-        const e0 = edgePart(setup, ctx, fx, fy, n, sad);
+        const e0 = edgePart(setup, ctx, fx, fy, n, sad, haveStart ? startQ : null);
+        if (e0) {
+          startQ.set(sad.q);
+          haveStart = true;
+        }
         if (!e0) {
           invalid[pix] = 1;
           invalidCount++;
@@ -395,13 +427,13 @@ export function fastField(
               let plus: [number, number] | null, minus: [number, number] | null, step: number;
               if (p < nTerms) {
                 step = 1e-5;
-                plus = edgePart(setup, { ...ctx, poly: termPolys[p].plus }, fx, fy, n, sad);
-                minus = edgePart(setup, { ...ctx, poly: termPolys[p].minus }, fx, fy, n, sad);
+                plus = edgePart(setup, { ...ctx, poly: termPolys[p].plus }, fx, fy, n, sad, startQ);
+                minus = edgePart(setup, { ...ctx, poly: termPolys[p].minus }, fx, fy, n, sad, startQ);
               } else {
                 step = 1e-9 * setup.disc.radiusM / 1e-3; // metres in F
                 const c = p - nTerms;
-                plus = edgePart(setup, ctx, fx + (c === 0 ? step : 0), fy + (c === 1 ? step : 0), n, sad);
-                minus = edgePart(setup, ctx, fx - (c === 0 ? step : 0), fy - (c === 1 ? step : 0), n, sad);
+                plus = edgePart(setup, ctx, fx + (c === 0 ? step : 0), fy + (c === 1 ? step : 0), n, sad, startQ);
+                minus = edgePart(setup, ctx, fx - (c === 0 ? step : 0), fy - (c === 1 ? step : 0), n, sad, startQ);
               }
               if (plus && minus) {
                 // acc holds Σ of rim-derivative terms that are later scaled by −Δφ
@@ -427,9 +459,47 @@ export function fastField(
   return { nx, ny, re: outRe, im: outIm, params, dRe, dIm, nPhi: n, invalid, invalidCount };
 }
 
+/**
+ * Σ_j h_j for every camera point, h = E·n/(i·s) (see fastField), over interleaved tables:
+ * XT[(ix·n + j)·8 + ·] = AX (2), n_x (2), s_xx (2), 2·M_xy·d_x (2);
+ * YT[(iy·n + j)·8 + ·] = E_y (2), n_y (2), s_yy (2), d_y (2).
+ */
+function rimSums(XT: Float64Array, YT: Float64Array, n: number, nx: number, ny: number, outRe: Float64Array, outIm: Float64Array): void {
+  for (let iy = 0; iy < ny; iy++) {
+    const yo = iy * n * 8;
+    for (let ix = 0; ix < nx; ix++) {
+      let xa = ix * n * 8;
+      let yb = yo;
+      let sr = 0;
+      let si = 0;
+      for (let j = 0; j < n; j++, xa += 8, yb += 8) {
+        const axr = XT[xa], axi = XT[xa + 1];
+        const eyr = YT[yb], eyi = YT[yb + 1];
+        const er = axr * eyr - axi * eyi;
+        const ei = axr * eyi + axi * eyr;
+        const nr = XT[xa + 2] + YT[yb + 2];
+        const ni = XT[xa + 3] + YT[yb + 3];
+        const x2r = XT[xa + 6], x2i = XT[xa + 7], dyr = YT[yb + 6], dyi = YT[yb + 7];
+        const ddr = XT[xa + 4] + YT[yb + 4] + x2r * dyr - x2i * dyi;
+        const ddi = XT[xa + 5] + YT[yb + 5] + x2r * dyi + x2i * dyr;
+        // h = E·n/(i·s) = E·n·conj(s)·(−i)/|s|²
+        const inv = 1 / (ddr * ddr + ddi * ddi);
+        const qr = (nr * ddr + ni * ddi) * inv;
+        const qi = (ni * ddr - nr * ddi) * inv;
+        sr += er * qi + ei * qr;
+        si -= er * qr - ei * qi;
+      }
+      outRe[iy * nx + ix] = sr;
+      outIm[iy * nx + ix] = si;
+    }
+  }
+}
+
 /** Free-beam and pole terms for one camera point: U_all·(n_far_out/2 + n_near/4) − Σ_near R·π·cot(Np/2). */
-function edgePart(setup: BenchSetup, ctx: SaddleContext, fx: number, fy: number, n: number, sad: SaddleResult): [number, number] | null {
-  if (!solveSaddle(ctx, fx, fy, sad).ok) return null;
+function edgePart(setup: BenchSetup, ctx: SaddleContext, fx: number, fy: number, n: number, sad: SaddleResult, start?: Float64Array | null): [number, number] | null {
+  if (!solveSaddle(ctx, fx, fy, sad, start).ok) {
+    if (!start || !solveSaddle(ctx, fx, fy, sad).ok) return null;
+  }
   let cr = 0, ci = 0;
   const weight = singularWeight(setup, sad, n, (rr, ri) => {
     cr += rr;
@@ -437,6 +507,8 @@ function edgePart(setup: BenchSetup, ctx: SaddleContext, fx: number, fy: number,
   });
   return [weight * sad.allRe - cr, weight * sad.allIm - ci];
 }
+
+const rootScratch = new Float64Array(4);
 
 /**
  * Weight of the free beam U_all for one camera point (½ per singular point outside the disc, ¼ per
@@ -459,16 +531,18 @@ function singularWeight(
   let sqi = Math.sqrt(Math.max(0, (m - discR) / 2));
   if (discI < 0) sqi = -sqi;
   const h11m = h11r * h11r + h11i * h11i;
-  const roots: [number, number][] = [];
-  for (const sgn of [1, -1]) {
+  const roots = rootScratch;
+  for (let q = 0; q < 2; q++) {
+    const sgn = q === 0 ? 1 : -1;
     const nr = -h12r + sgn * sqr, ni = -h12i + sgn * sqi;
-    roots.push([(nr * h11r + ni * h11i) / h11m, (ni * h11r - nr * h11i) / h11m]);
+    roots[2 * q] = (nr * h11r + ni * h11i) / h11m;
+    roots[2 * q + 1] = (ni * h11r - nr * h11i) / h11m;
   }
   const [Ax, Bx, Ay, By] = [sad.q[0], sad.q[1], sad.q[2], sad.q[3]];
   let weight = 0;
   for (let r = 0; r < 2; r++) {
-    const [tr, ti] = roots[r];
-    const [or, oi] = roots[1 - r];
+    const tr = roots[2 * r], ti = roots[2 * r + 1];
+    const or = roots[2 - 2 * r], oi = roots[3 - 2 * r];
     if (Math.abs(ti) < 1e-12) continue; // degenerate; cannot happen with a Gaussian amplitude
     const u = (tr * By - Bx) / ti;
     const qsx = Ax + tr * u + ti * By;

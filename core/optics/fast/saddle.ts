@@ -46,18 +46,25 @@ function csqrt(re: number, im: number): [number, number] {
   return [r, i];
 }
 
-export function solveSaddle(ctx: SaddleContext, fx: number, fy: number, out: SaddleResult): SaddleResult {
+/**
+ * Solve for the saddle Q* of Φ for the camera point F (in disc-plane coordinates F = P·L'/L).
+ * `start`, when given, is a nearby solution [xr, xi, yr, yi] to continue from (e.g. the previous pixel).
+ */
+export function solveSaddle(ctx: SaddleContext, fx: number, fy: number, out: SaddleResult, start?: Float64Array | null): SaddleResult {
   const { k, lpM, gamma, cx, cy, poly } = ctx;
   const invLp = 1 / lpM;
   // Pure-Gaussian start: Q = (F/L' + 2iγ c)/(1/L' + 2iγ)
   const dr = invLp, di = 2 * gamma;
   const den = dr * dr + di * di;
-  const start = (fv: number, cv: number): [number, number] => {
-    const nr = fv * invLp, ni = 2 * gamma * cv;
-    return [(nr * dr + ni * di) / den, (ni * dr - nr * di) / den];
-  };
-  let [xr, xi] = start(fx, cx);
-  let [yr, yi] = start(fy, cy);
+  let xr: number, xi: number, yr: number, yi: number;
+  if (start) {
+    xr = start[0]; xi = start[1]; yr = start[2]; yi = start[3];
+  } else {
+    let nr = fx * invLp, ni = 2 * gamma * cx;
+    xr = (nr * dr + ni * di) / den; xi = (ni * dr - nr * di) / den;
+    nr = fy * invLp; ni = 2 * gamma * cy;
+    yr = (nr * dr + ni * di) / den; yi = (ni * dr - nr * di) / den;
+  }
   let ok = false;
   const d = scratch;
   let jxxr = 0, jxxi = 0, jxyr = 0, jxyi = 0, jyyr = 0, jyyi = 0;

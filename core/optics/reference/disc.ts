@@ -24,13 +24,13 @@ import type { ProgressMeter } from './progress.ts';
 import { gaussLegendreHalf, glNodeCount } from './gauss-legendre.ts';
 
 export interface DiscRates {
-  /** Upper bound of |∇ log integrand| over the disc region for all camera points (1/m). */
-  rateM: number;
-  /** max |P_x|, max |P_y| over camera points. */
-  pxMax: number;
-  pyMax: number;
-  /** Gradient bound of the aberration phase plus amplitude slope bound (1/m). */
-  slowRateM: number;
+  /** Upper bound of |∇ log integrand| (phase and log-amplitude) over the disc region, for all camera points. */
+  ratePerM: number;
+  /** max |P_x| and max |P_y| over the camera points. */
+  pxMaxM: number;
+  pyMaxM: number;
+  /** The slowly varying part: gradient bound of the aberration phase plus the amplitude slope bound. */
+  slowRatePerM: number;
 }
 
 export function discRates(scene: DerivedScene, xs: Float64Array, ys: Float64Array): DiscRates {
@@ -42,8 +42,8 @@ export function discRates(scene: DerivedScene, xs: Float64Array, ys: Float64Arra
   const gPsi = scene.wavefront.maxGradient(0, 0, rMax);
   const amp = (2 * (rMax + Math.hypot(scene.beamCenterXM, scene.beamCenterYM))) / (scene.beamRadiusM * scene.beamRadiusM);
   const slow = gPsi + amp;
-  const rate = scene.k * (Math.abs(scene.kappa) * rMax + Math.hypot(pxMax, pyMax) / scene.distanceM) + slow;
-  return { rateM: rate, pxMax, pyMax, slowRateM: slow };
+  const rate = scene.waveNumberRadPerM * (Math.abs(scene.inverseEffectiveDistancePerM) * rMax + Math.hypot(pxMax, pyMax) / scene.distanceM) + slow;
+  return { ratePerM: rate, pxMaxM: pxMax, pyMaxM: pyMax, slowRatePerM: slow };
 }
 
 export interface CirclePlan {
@@ -55,14 +55,14 @@ export interface CirclePlan {
 
 export function planCircle(scene: DerivedScene, rates: DiscRates, accuracy: 'normal' | 'high', nodeScale: number): CirclePlan {
   const a = scene.edge.radiusM;
-  const rows = glNodeCount((Math.PI / 2) * a * rates.rateM, accuracy, nodeScale);
+  const rows = glNodeCount((Math.PI / 2) * a * rates.ratePerM, accuracy, nodeScale);
   const rule = gaussLegendreHalf(rows);
   const chordNodes = new Int32Array(rows / 2);
-  const kx = scene.k * Math.abs(scene.kappa);
-  const kp = (scene.k * rates.pxMax) / scene.distanceM;
+  const kx = scene.waveNumberRadPerM * Math.abs(scene.inverseEffectiveDistancePerM);
+  const kp = (scene.waveNumberRadPerM * rates.pxMaxM) / scene.distanceM;
   for (let j = 0; j < rows / 2; j++) {
     const h = a * Math.cos((Math.PI / 2) * rule.t[j]);
-    chordNodes[j] = glNodeCount(h * (kx * h + kp + rates.slowRateM), accuracy, nodeScale);
+    chordNodes[j] = glNodeCount(h * (kx * h + kp + rates.slowRatePerM), accuracy, nodeScale);
   }
   return { rows, chordNodes };
 }
@@ -86,7 +86,7 @@ export function subtractCircle(
   const nx = xs.length;
   const ny = ys.length;
   const a = scene.edge.radiusM;
-  const { k, kappa, beamRadiusM: w, beamCenterXM: cx, beamCenterYM: cy, distanceM: L } = scene;
+  const { waveNumberRadPerM: k, inverseEffectiveDistancePerM: kappa, beamRadiusM: w, beamCenterXM: cx, beamCenterYM: cy, distanceM: L } = scene;
   const kOverL = k / L;
   const halfKKappa = 0.5 * k * kappa;
   const invW2 = 1 / (w * w);
@@ -201,9 +201,9 @@ export function planStrip(
 ): StripPlan | null {
   const edge = scene.edge;
   if (edge.isCircle) return null;
-  const { k, distanceM: L } = scene;
+  const { waveNumberRadPerM: k, distanceM: L } = scene;
   const rMax = edge.maxRadiusM;
-  const pMax = Math.hypot(rates.pxMax, rates.pyMax);
+  const pMax = Math.hypot(rates.pxMaxM, rates.pyMaxM);
   const tol = accuracy === 'high' ? 1e-15 : 1e-12;
   // The θ-integrand is a product of factors whose Fourier series are known in bound:
   //  - at fixed radius, e^{−ik Q·P/L} (and the slowly varying amplitude and aberration) has
@@ -213,18 +213,17 @@ export function planStrip(
   //  - ellipticity is the order-2 term of amplitude a·e.
   // The trapezoid rule with N points is exact for orders below N, so N must exceed the sum of
   // the significant orders of the factors.
-  let order = besselOrderBound(k * rMax * pMax / L + rates.slowRateM * rMax, tol, accuracy);
-  const terms = edgeTerms(scene);
-  for (const t of terms) order += t.order * besselOrderBound(Math.abs(t.amplitudeM) * rates.rateM, tol, accuracy);
+  let order = besselOrderBound(k * rMax * pMax / L + rates.slowRatePerM * rMax, tol, accuracy);
+  for (const t of edge.terms) order += t.order * besselOrderBound(Math.abs(t.amplitudeM) * rates.ratePerM, tol, accuracy);
   const thetaNodes = 2 * Math.ceil((order * nodeScale + 8) / 2);
-  const radialNodes = glNodeCount(0.5 * edge.maxDeviationM * rates.rateM, accuracy, nodeScale);
+  const radialNodes = glNodeCount(0.5 * edge.maxDeviationM * rates.ratePerM, accuracy, nodeScale);
   return { thetaNodes, radialNodes };
 }
 
 /**
  * Order M beyond which the Fourier coefficients J_m(β) of e^{iβ cos θ} are negligible: the smaller of
  * the asymptotic count β + c·β^{1/3} + c₀ (from the transition region of J_m for m ≈ β) and the
- * first m with the bound |J_m(β)| ≤ (β/2)^m / m! (Abramowitz & Stegun 9.1.62) below tol.
+ * first m with the bound |J_m(β)| ≤ (β/2)^m / m! (Abramowitz & Stegun 9.1.62, from memory) below tol.
  */
 export function besselOrderBound(beta: number, tol: number, accuracy: 'normal' | 'high'): number {
   const b = Math.max(0, beta);
@@ -238,11 +237,6 @@ export function besselOrderBound(beta: number, tol: number, accuracy: 'normal' |
     if (m > b / 2 && logBound < lt) return m + 1;
   }
   return Math.ceil(asym);
-}
-
-/** The edge's angular terms as (order, amplitude): ellipticity as order 2, then the harmonics. */
-function edgeTerms(scene: DerivedScene): { order: number; amplitudeM: number }[] {
-  return scene.edge.terms;
 }
 
 export function stripWork(plan: StripPlan, nx: number, ny: number): number {
@@ -262,7 +256,7 @@ export function subtractStrip(
   const nx = xs.length;
   const ny = ys.length;
   const a = scene.edge.radiusM;
-  const { k, kappa, beamRadiusM: w, beamCenterXM: cx, beamCenterYM: cy, distanceM: L } = scene;
+  const { waveNumberRadPerM: k, inverseEffectiveDistancePerM: kappa, beamRadiusM: w, beamCenterXM: cx, beamCenterYM: cy, distanceM: L } = scene;
   const kOverL = k / L;
   const halfKKappa = 0.5 * k * kappa;
   const invW2 = 1 / (w * w);
@@ -270,57 +264,70 @@ export function subtractStrip(
   const rule = gaussLegendreHalf(plan.radialNodes);
   const nt = plan.thetaNodes;
   const dTheta = (2 * Math.PI) / nt;
-  const exR = new Float64Array(nx);
-  const exI = new Float64Array(nx);
-  const eyR = new Float64Array(ny);
-  const eyI = new Float64Array(ny);
   const nh = rule.t.length;
+  const nb = 2 * nh;
+  // All radial nodes of one θ form a block: ex[n·nx + f] = e^{−ik x_n P_x/L},
+  // ey[fy·nb + n] = c_n·e^{−ik y_n P_y/L}; then S[fy, f] −= Σ_n ey·ex with the row of S in cache.
+  const exR = new Float64Array(nb * nx);
+  const exI = new Float64Array(nb * nx);
+  const eyR = new Float64Array(nb * ny);
+  const eyI = new Float64Array(nb * ny);
+  const work = nb * (nx * ny + 4 * (nx + ny));
   for (let mTheta = 0; mTheta < nt; mTheta++) {
     const th = mTheta * dTheta;
     const d = scene.edge.radius(th) - a;
     if (d === 0) {
-      progress.advance(2 * nh * (nx * ny + 4 * (nx + ny)));
+      progress.advance(work);
       continue;
     }
     const ct = Math.cos(th);
     const st = Math.sin(th);
-    for (let side = -1; side <= 1; side += 2) {
-      for (let i = 0; i < nh; i++) {
-        const t = side * rule.t[i];
-        const rho = a + 0.5 * d * (1 + t);
-        const x = rho * ct;
-        const y = rho * st;
-        const ex = x - cx;
-        const ey = y - cy;
-        const wt = -dTheta * 0.5 * d * rule.w[i] * rho * Math.exp(-(ex * ex + ey * ey) * invW2);
-        const ph = halfKKappa * rho * rho + wf.phaseRad(x, y);
-        const cr = wt * Math.cos(ph);
-        const ci = wt * Math.sin(ph);
-        const qx = -kOverL * x;
-        const qy = -kOverL * y;
-        for (let f = 0; f < nx; f++) {
-          const l = qx * xs[f];
-          exR[f] = Math.cos(l);
-          exI[f] = Math.sin(l);
-        }
-        for (let f = 0; f < ny; f++) {
-          const l = qy * ys[f];
-          const c = Math.cos(l);
-          const s = Math.sin(l);
-          eyR[f] = cr * c - ci * s;
-          eyI[f] = cr * s + ci * c;
-        }
-        for (let fy = 0; fy < ny; fy++) {
-          const yr = eyR[fy];
-          const yi = eyI[fy];
-          const row = fy * nx;
-          for (let f = 0; f < nx; f++) {
-            sRe[row + f] += yr * exR[f] - yi * exI[f];
-            sIm[row + f] += yr * exI[f] + yi * exR[f];
-          }
-        }
+    for (let n = 0; n < nb; n++) {
+      const t = n < nh ? -rule.t[n] : rule.t[n - nh];
+      const wn = n < nh ? rule.w[n] : rule.w[n - nh];
+      const rho = a + 0.5 * d * (1 + t);
+      const x = rho * ct;
+      const y = rho * st;
+      const ex = x - cx;
+      const ey = y - cy;
+      const wt = -dTheta * 0.5 * d * wn * rho * Math.exp(-(ex * ex + ey * ey) * invW2);
+      const ph = halfKKappa * rho * rho + wf.phaseRad(x, y);
+      const cr = wt * Math.cos(ph);
+      const ci = wt * Math.sin(ph);
+      const qx = -kOverL * x;
+      const qy = -kOverL * y;
+      const off = n * nx;
+      for (let f = 0; f < nx; f++) {
+        const l = qx * xs[f];
+        exR[off + f] = Math.cos(l);
+        exI[off + f] = Math.sin(l);
       }
-      progress.advance(nh * (nx * ny + 4 * (nx + ny)));
+      for (let f = 0; f < ny; f++) {
+        const l = qy * ys[f];
+        const c = Math.cos(l);
+        const sn = Math.sin(l);
+        eyR[f * nb + n] = cr * c - ci * sn;
+        eyI[f * nb + n] = cr * sn + ci * c;
+      }
     }
+    for (let fy = 0; fy < ny; fy++) {
+      const row = fy * nx;
+      const yo = fy * nb;
+      for (let f = 0; f < nx; f++) {
+        let sr = 0;
+        let si = 0;
+        for (let n = 0, o = f; n < nb; n++, o += nx) {
+          const yr = eyR[yo + n];
+          const yi = eyI[yo + n];
+          const xr = exR[o];
+          const xi = exI[o];
+          sr += yr * xr - yi * xi;
+          si += yr * xi + yi * xr;
+        }
+        sRe[row + f] += sr;
+        sIm[row + f] += si;
+      }
+    }
+    progress.advance(work);
   }
 }

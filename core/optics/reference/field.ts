@@ -115,7 +115,7 @@ export function referenceFieldWithInfo(
   if (strip) subtractStrip(scene, strip, xsM, ysM, re, im, progress);
 
   // U = e^{i k |P|²/(2L)} · S / (iλL).
-  const kOver2L = scene.k / (2 * scene.distanceM);
+  const kOver2L = scene.waveNumberRadPerM / (2 * scene.distanceM);
   const invLL = 1 / (scene.wavelengthM * scene.distanceM);
   const qxR = new Float64Array(nx);
   const qxI = new Float64Array(nx);

@@ -115,13 +115,13 @@ export function addAnalyticFreeBeam(
 ): void {
   const nx = xs.length;
   const ny = ys.length;
-  const kOverL = scene.k / scene.distanceM;
+  const kOverL = scene.waveNumberRadPerM / scene.distanceM;
   const axRe = new Float64Array(nx);
   const axIm = new Float64Array(nx);
   const ayRe = new Float64Array(ny);
   const ayIm = new Float64Array(ny);
-  gaussianAxis(xs, scene.beamCenterXM, scene.beamRadiusM, scene.k, scene.kappa, kOverL, split.px, axRe, axIm);
-  gaussianAxis(ys, scene.beamCenterYM, scene.beamRadiusM, scene.k, scene.kappa, kOverL, split.py, ayRe, ayIm);
+  gaussianAxis(xs, scene.beamCenterXM, scene.beamRadiusM, scene.waveNumberRadPerM, scene.inverseEffectiveDistancePerM, kOverL, split.px, axRe, axIm);
+  gaussianAxis(ys, scene.beamCenterYM, scene.beamRadiusM, scene.waveNumberRadPerM, scene.inverseEffectiveDistancePerM, kOverL, split.py, ayRe, ayIm);
   for (let fy = 0; fy < ny; fy++) {
     const yr = ayRe[fy];
     const yi = ayIm[fy];
@@ -164,7 +164,7 @@ export function planNumericGrid(
   nodeScale: number,
   maxPerAxis: number,
 ): NumericGridPlan {
-  const { wavelengthM: lambda, kappa, beamRadiusM: w, beamCenterXM: cx, beamCenterYM: cy, distanceM: L } = scene;
+  const { wavelengthM: lambda, inverseEffectiveDistancePerM: kappa, beamRadiusM: w, beamCenterXM: cx, beamCenterYM: cy, distanceM: L } = scene;
   const lnInv = Math.log(1 / TRUNCATION[accuracy]);
   const Xg = w * Math.sqrt(lnInv);
   const gPsi = scene.wavefront.maxGradient(cx, cy, Xg) / (2 * Math.PI);
@@ -214,7 +214,7 @@ export function addNumericFreeBeam(
 ): void {
   const nx = xs.length;
   const ny = ys.length;
-  const { k, kappa, beamRadiusM: w, beamCenterXM: cx, beamCenterYM: cy, distanceM: L } = scene;
+  const { waveNumberRadPerM: k, inverseEffectiveDistancePerM: kappa, beamRadiusM: w, beamCenterXM: cx, beamCenterYM: cy, distanceM: L } = scene;
   const kOverL = k / L;
   const { halfX: Mx, halfY: My, spacingXM: hx, spacingYM: hy, truncationRadiusM: Xg } = plan;
   const wf = scene.wavefront;
@@ -241,25 +241,32 @@ export function addNumericFreeBeam(
     gxm[2 * i + 1] = Math.sin(pm);
   }
 
-  const cpsR = new Float64Array(Mx);
-  const cpsI = new Float64Array(Mx);
-  const cmsR = new Float64Array(Mx);
-  const cmsI = new Float64Array(Mx);
-  const cpdR = new Float64Array(Mx);
-  const cpdI = new Float64Array(Mx);
-  const cmdR = new Float64Array(Mx);
-  const cmdI = new Float64Array(Mx);
-  const cosEta = new Float64Array(ny);
-  const sinEta = new Float64Array(ny);
+  // Row pairs are processed in blocks of RB so that each cos/sin table entry, once loaded, serves
+  // RB row pairs (the table is larger than the cache for big grids).
+  const RB = 4;
+  const cpsR = new Float64Array(RB * Mx);
+  const cpsI = new Float64Array(RB * Mx);
+  const cmsR = new Float64Array(RB * Mx);
+  const cmsI = new Float64Array(RB * Mx);
+  const cpdR = new Float64Array(RB * Mx);
+  const cpdI = new Float64Array(RB * Mx);
+  const cmdR = new Float64Array(RB * Mx);
+  const cmdI = new Float64Array(RB * Mx);
+  const cosEta = new Float64Array(RB * ny);
+  const sinEta = new Float64Array(RB * ny);
 
   // Column chunks keep the cos/sin table below ~2^22 entries each.
   const chunk = Math.max(1, Math.min(nx, Math.floor((1 << 22) / Mx)));
   const cosL = new Float64Array(chunk * Mx);
   const sinL = new Float64Array(chunk * Mx);
-  const dR = new Float64Array(chunk);
-  const dI = new Float64Array(chunk);
-  const eR = new Float64Array(chunk);
-  const eI = new Float64Array(chunk);
+  const dR = new Float64Array(RB * chunk);
+  const dI = new Float64Array(RB * chunk);
+  const eR = new Float64Array(RB * chunk);
+  const eI = new Float64Array(RB * chunk);
+
+  // Number of row pairs inside the truncation disc.
+  let rows = 0;
+  while (rows < My && (rows + 0.5) * hy <= rCut) rows++;
 
   for (let f0 = 0; f0 < nx; f0 += chunk) {
     const f1 = Math.min(nx, f0 + chunk);
@@ -273,78 +280,112 @@ export function addNumericFreeBeam(
         sinL[base + i] = Math.sin(l);
       }
     }
-    for (let j = 0; j < My; j++) {
-      const v = (j + 0.5) * hy;
-      if (v > rCut) break;
-      const half = Math.sqrt(rCut * rCut - v * v);
-      const iLim = Math.min(Mx, Math.max(0, Math.ceil(half / hx - 0.5)));
-      const yp = cy + v;
-      const ym = cy - v;
-      const phYp = halfKKappa * yp * yp;
-      const phYm = halfKKappa * ym * ym;
-      const ev = Math.exp(-v * v * invW2) * hx * hy;
-      for (let i = 0; i < iLim; i++) {
-        const ui = u[i];
-        const amp = ev * Math.exp(-ui * ui * invW2);
-        const xp = cx + ui;
-        const xm = cx - ui;
-        // Phases of the four nodes (chirp + aberration); the amplitude is common to all four.
-        const ppx = halfKKappa * xp * xp;
-        const pmx = halfKKappa * xm * xm;
-        const a1 = ppx + phYp + wf.phaseRad(xp, yp); // (+u, +v)
-        const a2 = pmx + phYp + wf.phaseRad(xm, yp); // (−u, +v)
-        const a3 = ppx + phYm + wf.phaseRad(xp, ym); // (+u, −v)
-        const a4 = pmx + phYm + wf.phaseRad(xm, ym); // (−u, −v)
-        const c1r = amp * Math.cos(a1), c1i = amp * Math.sin(a1);
-        const c2r = amp * Math.cos(a2), c2i = amp * Math.sin(a2);
-        const c3r = amp * Math.cos(a3), c3i = amp * Math.sin(a3);
-        const c4r = amp * Math.cos(a4), c4i = amp * Math.sin(a4);
-        // Cp(±v) = c(+u) + c(−u), Cm(±v) = c(+u) − c(−u); S = (+v) + (−v), D = (+v) − (−v).
-        const pPr = c1r + c2r, pPi = c1i + c2i, mPr = c1r - c2r, mPi = c1i - c2i;
-        const pMr = c3r + c4r, pMi = c3i + c4i, mMr = c3r - c4r, mMi = c3i - c4i;
-        cpsR[i] = pPr + pMr;
-        cpsI[i] = pPi + pMi;
-        cmsR[i] = mPr + mMr;
-        cmsI[i] = mPi + mMi;
-        cpdR[i] = pPr - pMr;
-        cpdI[i] = pPi - pMi;
-        cmdR[i] = mPr - mMr;
-        cmdI[i] = mPi - mMi;
+    for (let j0 = 0; j0 < rows; j0 += RB) {
+      let iMax = 0;
+      let work = 0;
+      for (let r = 0; r < RB; r++) {
+        const j = j0 + r;
+        // Rows past the end of the disc get zero coefficients.
+        let iLim = 0;
+        const v = (j + 0.5) * hy;
+        if (j < rows) {
+          const half = Math.sqrt(Math.max(0, rCut * rCut - v * v));
+          iLim = Math.min(Mx, Math.max(0, Math.ceil(half / hx - 0.5)));
+        }
+        const yp = cy + v;
+        const ym = cy - v;
+        const phYp = halfKKappa * yp * yp;
+        const phYm = halfKKappa * ym * ym;
+        const ev = Math.exp(-v * v * invW2) * hx * hy;
+        for (let i = 0; i < Mx; i++) {
+          const o = i * RB + r;
+          if (i >= iLim) {
+            cpsR[o] = cpsI[o] = cmsR[o] = cmsI[o] = cpdR[o] = cpdI[o] = cmdR[o] = cmdI[o] = 0;
+            continue;
+          }
+          const ui = u[i];
+          const amp = ev * Math.exp(-ui * ui * invW2);
+          const xp = cx + ui;
+          const xm = cx - ui;
+          // Phases of the four nodes (chirp + aberration); the amplitude is common to all four.
+          const ppx = halfKKappa * xp * xp;
+          const pmx = halfKKappa * xm * xm;
+          const a1 = ppx + phYp + wf.phaseRad(xp, yp); // (+u, +v)
+          const a2 = pmx + phYp + wf.phaseRad(xm, yp); // (−u, +v)
+          const a3 = ppx + phYm + wf.phaseRad(xp, ym); // (+u, −v)
+          const a4 = pmx + phYm + wf.phaseRad(xm, ym); // (−u, −v)
+          const c1r = amp * Math.cos(a1), c1i = amp * Math.sin(a1);
+          const c2r = amp * Math.cos(a2), c2i = amp * Math.sin(a2);
+          const c3r = amp * Math.cos(a3), c3i = amp * Math.sin(a3);
+          const c4r = amp * Math.cos(a4), c4i = amp * Math.sin(a4);
+          // Cp(±v) = c(+u) + c(−u), Cm(±v) = c(+u) − c(−u); then sums (s) and differences (d) over ±v.
+          const pPr = c1r + c2r, pPi = c1i + c2i, mPr = c1r - c2r, mPi = c1i - c2i;
+          const pMr = c3r + c4r, pMi = c3i + c4i, mMr = c3r - c4r, mMi = c3i - c4i;
+          cpsR[o] = pPr + pMr;
+          cpsI[o] = pPi + pMi;
+          cmsR[o] = mPr + mMr;
+          cmsI[o] = mPi + mMi;
+          cpdR[o] = pPr - pMr;
+          cpdI[o] = pPi - pMi;
+          cmdR[o] = mPr - mMr;
+          cmdI[o] = mPi - mMi;
+        }
+        if (iLim > iMax) iMax = iLim;
+        work += iLim * nc * 2 + nc * ny;
+        // Mirrored rows: e^{∓iη}, η = k v P_y / L → cosη·D − i·sinη·E.
+        const pv = j < rows ? kOverL * v : 0;
+        for (let fy = 0; fy < ny; fy++) {
+          const eta = pv * ys[fy];
+          cosEta[fy * RB + r] = j < rows ? Math.cos(eta) : 0;
+          sinEta[fy * RB + r] = j < rows ? Math.sin(eta) : 0;
+        }
       }
-      // Row sums for every column of the chunk: Σ_i cosℓ·Cp − i·sinℓ·Cm.
+      // Row sums for every column of the chunk: D = Σ_i cosℓ·Cps − i·sinℓ·Cms, E likewise with Cpd, Cmd.
       for (let f = 0; f < nc; f++) {
         const base = f * Mx;
-        let sr = 0, si = 0, tr = 0, ti = 0;
-        for (let i = 0; i < iLim; i++) {
+        let d0r = 0, d0i = 0, e0r = 0, e0i = 0;
+        let d1r = 0, d1i = 0, e1r = 0, e1i = 0;
+        let d2r = 0, d2i = 0, e2r = 0, e2i = 0;
+        let d3r = 0, d3i = 0, e3r = 0, e3i = 0;
+        for (let i = 0, o = 0; i < iMax; i++, o += RB) {
           const c = cosL[base + i];
           const s = sinL[base + i];
-          sr += c * cpsR[i] + s * cmsI[i];
-          si += c * cpsI[i] - s * cmsR[i];
-          tr += c * cpdR[i] + s * cmdI[i];
-          ti += c * cpdI[i] - s * cmdR[i];
+          d0r += c * cpsR[o] + s * cmsI[o];
+          d0i += c * cpsI[o] - s * cmsR[o];
+          e0r += c * cpdR[o] + s * cmdI[o];
+          e0i += c * cpdI[o] - s * cmdR[o];
+          d1r += c * cpsR[o + 1] + s * cmsI[o + 1];
+          d1i += c * cpsI[o + 1] - s * cmsR[o + 1];
+          e1r += c * cpdR[o + 1] + s * cmdI[o + 1];
+          e1i += c * cpdI[o + 1] - s * cmdR[o + 1];
+          d2r += c * cpsR[o + 2] + s * cmsI[o + 2];
+          d2i += c * cpsI[o + 2] - s * cmsR[o + 2];
+          e2r += c * cpdR[o + 2] + s * cmdI[o + 2];
+          e2i += c * cpdI[o + 2] - s * cmdR[o + 2];
+          d3r += c * cpsR[o + 3] + s * cmsI[o + 3];
+          d3i += c * cpsI[o + 3] - s * cmsR[o + 3];
+          e3r += c * cpdR[o + 3] + s * cmdI[o + 3];
+          e3i += c * cpdI[o + 3] - s * cmdR[o + 3];
         }
-        dR[f] = sr;
-        dI[f] = si;
-        eR[f] = tr;
-        eI[f] = ti;
-      }
-      // Mirrored rows: e^{∓iη}, η = k v P_y / L → cosη·D − i·sinη·E.
-      const pv = kOverL * v;
-      for (let fy = 0; fy < ny; fy++) {
-        const eta = pv * ys[fy];
-        cosEta[fy] = Math.cos(eta);
-        sinEta[fy] = Math.sin(eta);
+        const q = f * RB;
+        dR[q] = d0r; dI[q] = d0i; eR[q] = e0r; eI[q] = e0i;
+        dR[q + 1] = d1r; dI[q + 1] = d1i; eR[q + 1] = e1r; eI[q + 1] = e1i;
+        dR[q + 2] = d2r; dI[q + 2] = d2i; eR[q + 2] = e2r; eI[q + 2] = e2i;
+        dR[q + 3] = d3r; dI[q + 3] = d3i; eR[q + 3] = e3r; eI[q + 3] = e3i;
       }
       for (let fy = 0; fy < ny; fy++) {
-        const c = cosEta[fy];
-        const s = sinEta[fy];
+        const t = fy * RB;
+        const c0 = cosEta[t], c1 = cosEta[t + 1], c2 = cosEta[t + 2], c3 = cosEta[t + 3];
+        const s0 = sinEta[t], s1 = sinEta[t + 1], s2 = sinEta[t + 2], s3 = sinEta[t + 3];
         const row = fy * nx + f0;
-        for (let f = 0; f < nc; f++) {
-          bRe[row + f] += c * dR[f] + s * eI[f];
-          bIm[row + f] += c * dI[f] - s * eR[f];
+        for (let f = 0, q = 0; f < nc; f++, q += RB) {
+          bRe[row + f] +=
+            c0 * dR[q] + s0 * eI[q] + c1 * dR[q + 1] + s1 * eI[q + 1] + c2 * dR[q + 2] + s2 * eI[q + 2] + c3 * dR[q + 3] + s3 * eI[q + 3];
+          bIm[row + f] +=
+            c0 * dI[q] - s0 * eR[q] + c1 * dI[q + 1] - s1 * eR[q + 1] + c2 * dI[q + 2] - s2 * eR[q + 2] + c3 * dI[q + 3] - s3 * eR[q + 3];
         }
       }
-      progress.advance(iLim * nc * 2 + nc * ny);
+      progress.advance(work);
     }
   }
   // Offset phase of the grid centre.

@@ -8,9 +8,11 @@
  * is the intensity relative to the incident peak at the disc plane.
  */
 import type { BenchSetup, ZernikeTerm } from '../../setup/types.ts';
-import { referenceFieldWithInfo, type ComplexGrid, type ReferenceOptions } from './field.ts';
+import { referenceFieldWithInfo, type ComplexGrid } from './field.ts';
 
-export type { ComplexGrid, ReferenceOptions } from './field.ts';
+export type { ComplexGrid, ReferenceOptions, InternalOptions, ReferenceInfo } from './field.ts';
+/** Same field plus a description of the quadrature used (route, grid, node counts); for diagnostics. */
+export { referenceFieldWithInfo } from './field.ts';
 
 /**
  * Field at camera points P = (xsM[ix], ysM[iy]) (metres, lab frame, relative to the nominal axis
@@ -27,7 +29,7 @@ export function referenceField(
   ysM: Float64Array,
   options?: { accuracy?: 'normal' | 'high'; onProgress?: (fraction: number) => boolean | void },
 ): ComplexGrid {
-  return referenceFieldWithInfo(setup, aberrations, xsM, ysM, (options ?? {}) as ReferenceOptions).field;
+  return referenceFieldWithInfo(setup, aberrations, xsM, ysM, options ?? {}).field;
 }
 
 /** Intensity |U|² at the same points, row-major, relative to the incident peak intensity at the disc. */

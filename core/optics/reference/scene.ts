@@ -20,8 +20,6 @@ export interface EdgeShape {
   maxRadiusM: number;
   /** Upper bound of |r(θ) − a|. */
   maxDeviationM: number;
-  /** Upper bound of |dr/dθ| (metres per radian). */
-  maxSlopeM: number;
   /** Highest angular order present in r(θ) (2 for ellipticity). */
   maxOrder: number;
   /** r(θ). */
@@ -41,12 +39,12 @@ export interface Wavefront {
 
 export interface DerivedScene {
   wavelengthM: number;
-  /** Wavenumber k = 2π/λ (rad/m). */
-  k: number;
+  /** Wavenumber k = 2π/λ. */
+  waveNumberRadPerM: number;
   /** Camera distance L. */
   distanceM: number;
-  /** κ = 1/L + 1/R = 1/L' (1/m). */
-  kappa: number;
+  /** κ = 1/L + 1/R = 1/L' (zero when the camera sits at the focus, negative beyond it). */
+  inverseEffectiveDistancePerM: number;
   /** 1/e² intensity radius w. */
   beamRadiusM: number;
   beamCenterXM: number;
@@ -76,7 +74,6 @@ function buildEdge(setup: BenchSetup): EdgeShape {
   const amps: number[] = [];
   const phases: number[] = [];
   let maxDev = Math.abs(a * e);
-  let maxSlope = Math.abs(2 * a * e);
   let maxOrder = e !== 0 ? 2 : 0;
   for (const h of harmonics) {
     if (!Number.isInteger(h.order) || h.order < 0) {
@@ -89,7 +86,6 @@ function buildEdge(setup: BenchSetup): EdgeShape {
     amps.push(h.amplitudeM);
     phases.push(h.phaseRad);
     maxDev += Math.abs(h.amplitudeM);
-    maxSlope += Math.abs(h.amplitudeM) * h.order;
     if (h.order > maxOrder) maxOrder = h.order;
   }
   const nh = orders.length;
@@ -112,7 +108,7 @@ function buildEdge(setup: BenchSetup): EdgeShape {
   const terms: { order: number; amplitudeM: number }[] = [];
   if (e !== 0) terms.push({ order: 2, amplitudeM: a * e });
   for (let i = 0; i < nh; i++) terms.push({ order: orders[i], amplitudeM: amps[i] });
-  return { radiusM: a, isCircle, maxRadiusM: a + maxDev, maxDeviationM: maxDev, maxSlopeM: maxSlope, maxOrder, radius, terms };
+  return { radiusM: a, isCircle, maxRadiusM: a + maxDev, maxDeviationM: maxDev, maxOrder, radius, terms };
 }
 
 function buildWavefront(aberrations: readonly ZernikeTerm[], zernikeRadiusM: number): Wavefront {
@@ -166,9 +162,9 @@ export function deriveScene(setup: BenchSetup, aberrations: readonly ZernikeTerm
   const kappa = 1 / L + 1 / R;
   return {
     wavelengthM: lambda,
-    k: (2 * Math.PI) / lambda,
+    waveNumberRadPerM: (2 * Math.PI) / lambda,
     distanceM: L,
-    kappa,
+    inverseEffectiveDistancePerM: kappa,
     beamRadiusM: w,
     beamCenterXM: cx,
     beamCenterYM: cy,

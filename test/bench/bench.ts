@@ -1,0 +1,76 @@
+/**
+ * Speed of the simulators: `npm run bench`. Prints median wall times; no assertions.
+ * Scenes: the HeNe example bench (632.8 nm, w = 4 mm, 3 mm disc at 0.8 m) with 5 aberration terms,
+ * framed two ways: 5.5 µm pixels (the central spot and rings) and a frame that holds the whole shadow
+ * with its edge.
+ */
+import { fastField } from '../../core/optics/fast/rimModel.ts';
+import { referenceField } from '../../core/optics/reference/index.ts';
+import { pixelSampleAxes } from '../../core/camera/pixels.ts';
+import type { BenchSetup, ZernikeTerm } from '../../core/setup/types.ts';
+import { cpus } from 'node:os';
+
+const setup: BenchSetup = {
+  wavelengthM: 632.8e-9,
+  beam: { radiusM: 4e-3, centerM: [0, 0], curvatureRadiusM: Infinity },
+  disc: { radiusM: 1.5e-3, ellipticity: 0, ellipseAngleRad: 0, edgeHarmonics: [] },
+  camera: { distanceM: 0.8, pixelPitchM: 5.5e-6, bitDepth: 12, saturationCounts: 4095, orientation: { flipX: false, flipY: false, rotateDeg: 0 } },
+  zernikeRadiusM: 4e-3,
+  source: { sizeM: 0 },
+};
+const aberrations: ZernikeTerm[] = [
+  { j: 3, waves: 0.03 },
+  { j: 4, waves: 0.05 },
+  { j: 5, waves: 0.1 },
+  { j: 7, waves: -0.04 },
+  { j: 8, waves: 0.05 },
+];
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  return s[Math.floor(s.length / 2)];
+}
+
+function time(fn: () => unknown, repeats: number): number {
+  fn(); // warm-up (JIT), not counted
+  const t: number[] = [];
+  for (let i = 0; i < repeats; i++) {
+    const t0 = performance.now();
+    fn();
+    t.push(performance.now() - t0);
+  }
+  return median(t);
+}
+
+const rows: string[][] = [];
+function row(...cells: string[]): void {
+  rows.push(cells);
+  process.stdout.write(`${cells.join('  |  ')}\n`);
+}
+
+process.stdout.write(`Shadowfront bench — node ${process.version}, ${cpus().length} cores (${cpus()[0]?.model ?? '?'})\n`);
+process.stdout.write('Times are medians of repeated runs after one warm-up run, in ms; points are pixel centres unless noted.\n\n');
+
+for (const size of [256, 512]) {
+  for (const [label, pitch] of [
+    ['spot and rings, 5.5 µm px', 5.5e-6],
+    ['whole shadow with edge', (1.3 * 2 * setup.disc.radiusM) / size],
+  ] as const) {
+    const frame = { widthPx: size, heightPx: size, centerM: [0, 0] as [number, number] };
+    const ax = pixelSampleAxes(frame, pitch, 1);
+    const probe = fastField(setup, aberrations, ax.xsM, ax.ysM);
+    const reps = size === 256 ? 7 : 3;
+    const tFast = time(() => fastField(setup, aberrations, ax.xsM, ax.ysM), reps);
+    row(`${size}×${size}`, label, `fast ${tFast.toFixed(0)} ms (${probe.nPhi} rim samples)`);
+    const ax2 = pixelSampleAxes(frame, pitch, 2);
+    const tFast2 = time(() => fastField(setup, aberrations, ax2.xsM, ax2.ysM), size === 256 ? 3 : 1);
+    row(`${size}×${size}`, label, `fast with 2×2 pixel integration ${tFast2.toFixed(0)} ms`);
+    for (const nTerms of [5, 8]) {
+      const terms = [3, 4, 5, 7, 8, 6, 9, 12].slice(0, nTerms);
+      const tJac = time(() => fastField(setup, aberrations, ax.xsM, ax.ysM, { derivativeTerms: terms, centerDerivatives: true }), size === 256 ? 3 : 1);
+      row(`${size}×${size}`, label, `fast + Jacobian (${nTerms} Zernike terms + centre x, y) ${tJac.toFixed(0)} ms`);
+    }
+    const tRef = time(() => referenceField(setup, aberrations, ax.xsM, ax.ysM), size === 256 ? 3 : 1);
+    row(`${size}×${size}`, label, `reference ${tRef.toFixed(0)} ms`);
+  }
+}
