@@ -20,7 +20,7 @@ Options:
   -h, --help       show this help`;
 
 const here = fileURLToPath(new URL('.', import.meta.url));
-export const DEMO_SCENE = resolve(here, '../../../resources/examples/scene-hene-astig.json');
+export const DEMO_SCENE = resolve(here, '../../../resources/demo/scene-demo.json');
 
 export function demoCommand(argv: string[]): number {
   const { values } = parseArgs({
