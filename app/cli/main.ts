@@ -3,14 +3,35 @@
  */
 import { readFileSync } from 'node:fs';
 import { reportError, UsageError } from './output.ts';
-import { simulateCommand, SIMULATE_USAGE } from './commands/simulate.ts';
-import { figuresCommand, FIGURES_USAGE } from './commands/figures.ts';
-import { demoCommand, DEMO_USAGE } from './commands/demo.ts';
 
-const COMMANDS: Record<string, { run: (argv: string[]) => number | Promise<number>; usage: string; summary: string }> = {
-  simulate: { run: simulateCommand, usage: SIMULATE_USAGE, summary: 'simulate a camera frame of the shadow from a scene file' },
-  figures: { run: figuresCommand, usage: FIGURES_USAGE, summary: 'print the derived figures of a bench setup' },
-  demo: { run: demoCommand, usage: DEMO_USAGE, summary: 'run the bundled synthetic demonstration' },
+interface CommandModule {
+  run(argv: string[]): number | Promise<number>;
+  usage: string;
+}
+
+// Commands load on demand, so that `--help` does not pay for the physics and unit libraries.
+const COMMANDS: Record<string, { load: () => Promise<CommandModule>; summary: string }> = {
+  simulate: {
+    load: async () => {
+      const m = await import('./commands/simulate.ts');
+      return { run: m.simulateCommand, usage: m.SIMULATE_USAGE };
+    },
+    summary: 'simulate a camera frame of the shadow from a scene file',
+  },
+  figures: {
+    load: async () => {
+      const m = await import('./commands/figures.ts');
+      return { run: m.figuresCommand, usage: m.FIGURES_USAGE };
+    },
+    summary: 'print the derived figures of a bench setup',
+  },
+  demo: {
+    load: async () => {
+      const m = await import('./commands/demo.ts');
+      return { run: m.demoCommand, usage: m.DEMO_USAGE };
+    },
+    summary: 'run the bundled synthetic demonstration',
+  },
 };
 
 function version(): string {
@@ -35,7 +56,7 @@ export async function main(argv: string[]): Promise<number> {
   const [cmd, ...rest] = argv;
   if (!cmd || cmd === '-h' || cmd === '--help' || cmd === 'help') {
     if (cmd === 'help' && rest[0] && COMMANDS[rest[0]]) {
-      process.stdout.write(`${COMMANDS[rest[0]].usage}\n`);
+      process.stdout.write(`${(await COMMANDS[rest[0]].load()).usage}\n`);
       return 0;
     }
     process.stdout.write(`${MAIN_USAGE}\n`);
@@ -45,10 +66,11 @@ export async function main(argv: string[]): Promise<number> {
     process.stdout.write(`${version()}\n`);
     return 0;
   }
-  const command = COMMANDS[cmd];
-  if (!command) {
+  const entry = COMMANDS[cmd];
+  if (!entry) {
     return reportError(new UsageError(`unknown command "${cmd}"`), MAIN_USAGE);
   }
+  const command = await entry.load();
   try {
     return await command.run(rest);
   } catch (err) {

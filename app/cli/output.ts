@@ -1,8 +1,10 @@
 /** Error reporting shared by the CLI commands: plain words, never a raw stack. */
-import { SetupFieldError } from '../../core/setup/fieldReader.ts';
-import { QuantityError } from '../../core/units/parseQuantity.ts';
-import { ImageDecodeError } from '../../core/imageio/errors.ts';
-import { FileProblem } from '../services/files.ts';
+
+/**
+ * Errors that carry a message written for the user (file, field, value, what was expected).
+ * Matched by name so that printing help does not load the libraries that define them.
+ */
+const USER_ERRORS = new Set(['SetupFieldError', 'QuantityError', 'ImageDecodeError', 'FileProblem', 'RangeError', 'CancelledError']);
 
 /** A mistake in how the command was called: printed with the command's usage. */
 export class UsageError extends Error {
@@ -20,13 +22,7 @@ export function reportError(err: unknown, usage?: string): number {
     if (usage) process.stderr.write(`\n${usage}\n`);
     return 2;
   }
-  const known =
-    err instanceof SetupFieldError ||
-    err instanceof QuantityError ||
-    err instanceof ImageDecodeError ||
-    err instanceof FileProblem ||
-    err instanceof RangeError ||
-    (e && e.name === 'CancelledError');
+  const known = !!e && USER_ERRORS.has(e.name);
   if (known) {
     process.stderr.write(`shadowfront: error: ${e.message}\n`);
     return 1;
