@@ -163,71 +163,192 @@ export function fastField(
   const dphi = (2 * Math.PI) / n;
   const t = buildRimTables(setup, poly, n, k, lp);
 
-  // --- separable tables, layout [ix*n + j] and [iy*n + j]
-  const mkX = () => new Float64Array(nx * n);
-  const mkY = () => new Float64Array(ny * n);
-  const axr = mkX(), axi = mkX(), dxr = mkX(), dxi = mkX(), ndxr = mkX(), ndxi = mkX(), sxxr = mkX(), sxxi = mkX(), x2r = mkX(), x2i = mkX();
-  const eyr = mkY(), eyi = mkY(), dyr = mkY(), dyi = mkY(), ndyr = mkY(), ndyi = mkY(), syyr = mkY(), syyi = mkY();
+  // --- separable tables, interleaved: X[(ix·n + j)·XS + ·], Y[(iy·n + j)·YS + ·]
+  // X: AX (2), n_x = m_x·d_x (2), s_xx = M_xx·d_x² (2), 2·M_xy·d_x (2), d_x (2)
+  // Y: E_y (2), n_y = m_y·d_y (2), s_yy = M_yy·d_y² (2), d_y (2)
+  const XS = 10;
+  const YS = 8;
+  const X = new Float64Array(nx * n * XS);
+  const Y = new Float64Array(ny * n * YS);
   const fxs = new Float64Array(nx);
   const fys = new Float64Array(ny);
   for (let ix = 0; ix < nx; ix++) {
     const fx = (xsM[ix] * lp) / L;
     fxs[ix] = fx;
     for (let j = 0; j < n; j++) {
-      const o = ix * n + j;
+      const o = (ix * n + j) * XS;
       const u = t.qx[j] - fx;
       const ph = (k * u * u) / (2 * lp);
       const c = Math.cos(ph), s = Math.sin(ph);
-      axr[o] = t.br[j] * c - t.bi[j] * s;
-      axi[o] = t.br[j] * s + t.bi[j] * c;
+      X[o] = t.br[j] * c - t.bi[j] * s;
+      X[o + 1] = t.br[j] * s + t.bi[j] * c;
       const dr = t.g0xr[j] - kap * fx, di = t.g0xi[j];
-      dxr[o] = dr; dxi[o] = di;
-      ndxr[o] = t.mvxr[j] * dr - t.mvxi[j] * di;
-      ndxi[o] = t.mvxr[j] * di + t.mvxi[j] * dr;
+      X[o + 2] = t.mvxr[j] * dr - t.mvxi[j] * di;
+      X[o + 3] = t.mvxr[j] * di + t.mvxi[j] * dr;
       const d2r = dr * dr - di * di, d2i = 2 * dr * di;
-      sxxr[o] = t.mxxr[j] * d2r - t.mxxi[j] * d2i;
-      sxxi[o] = t.mxxr[j] * d2i + t.mxxi[j] * d2r;
-      x2r[o] = 2 * (t.mxyr[j] * dr - t.mxyi[j] * di);
-      x2i[o] = 2 * (t.mxyr[j] * di + t.mxyi[j] * dr);
+      X[o + 4] = t.mxxr[j] * d2r - t.mxxi[j] * d2i;
+      X[o + 5] = t.mxxr[j] * d2i + t.mxxi[j] * d2r;
+      X[o + 6] = 2 * (t.mxyr[j] * dr - t.mxyi[j] * di);
+      X[o + 7] = 2 * (t.mxyr[j] * di + t.mxyi[j] * dr);
+      X[o + 8] = dr;
+      X[o + 9] = di;
     }
   }
   for (let iy = 0; iy < ny; iy++) {
     const fy = (ysM[iy] * lp) / L;
     fys[iy] = fy;
     for (let j = 0; j < n; j++) {
-      const o = iy * n + j;
+      const o = (iy * n + j) * YS;
       const u = t.qy[j] - fy;
       const ph = (k * u * u) / (2 * lp);
-      eyr[o] = Math.cos(ph); eyi[o] = Math.sin(ph);
+      Y[o] = Math.cos(ph);
+      Y[o + 1] = Math.sin(ph);
       const dr = t.g0yr[j] - kap * fy, di = t.g0yi[j];
-      dyr[o] = dr; dyi[o] = di;
-      ndyr[o] = t.mvyr[j] * dr - t.mvyi[j] * di;
-      ndyi[o] = t.mvyr[j] * di + t.mvyi[j] * dr;
+      Y[o + 2] = t.mvyr[j] * dr - t.mvyi[j] * di;
+      Y[o + 3] = t.mvyr[j] * di + t.mvyi[j] * dr;
       const d2r = dr * dr - di * di, d2i = 2 * dr * di;
-      syyr[o] = t.myyr[j] * d2r - t.myyi[j] * d2i;
-      syyi[o] = t.myyr[j] * d2i + t.myyi[j] * d2r;
+      Y[o + 4] = t.myyr[j] * d2r - t.myyi[j] * d2i;
+      Y[o + 5] = t.myyr[j] * d2i + t.myyi[j] * d2r;
+      Y[o + 6] = dr;
+      Y[o + 7] = di;
     }
   }
 
   // --- derivative set-up
   const terms = options.derivativeTerms ?? [];
   const params: string[] = terms.map((j) => `z${j}`);
-  if (options.centerDerivatives) params.push('px', 'py');
+  const wantCenter = !!options.centerDerivatives;
+  if (wantCenter) params.push('px', 'py');
   const np = params.length;
+  const nTerms = terms.length;
   const outRe = new Float64Array(nx * ny);
   const outIm = new Float64Array(nx * ny);
   const dRe = params.map(() => new Float64Array(nx * ny));
   const dIm = params.map(() => new Float64Array(nx * ny));
 
-  // Per-term rim data: kZ (real), δg0 (real), δM (complex), δm = δM·ν, m·δg0
-  interface TermTables { kz: Float64Array; nxr: Float64Array; nxi: Float64Array; sxr: Float64Array; sxi: Float64Array; x2r: Float64Array; x2i: Float64Array; nyr: Float64Array; nyi: Float64Array; syr: Float64Array; syi: Float64Array; poly: Polynomial2D }
-  const termTables: TermTables[] = [];
+  // Rim sums Σ_j h_j (and their derivatives), without the factor −Δφ.
+  const rimRe = new Float64Array(nx * ny);
+  const rimIm = new Float64Array(nx * ny);
+  if (np === 0) {
+    rimSums(X, Y, n, nx, ny, rimRe, rimIm);
+  } else {
+    const tables = derivativeTables(setup, t, terms, lambda, k, kap, n, nx, ny, X, Y, fxs, fys, lp, wantCenter);
+    rimSumsWithDerivatives(X, Y, tables, n, nx, ny, rimRe, rimIm, dRe, dIm);
+  }
+
+  const termPolys = terms.map((jz) => ({
+    plus: wavefrontPolynomial(lambda, setup.zernikeRadiusM, [...aberrations, { j: jz, waves: 1e-5 }]),
+    minus: wavefrontPolynomial(lambda, setup.zernikeRadiusM, [...aberrations, { j: jz, waves: -1e-5 }]),
+  }));
+  const ctx: SaddleContext = { k, lpM: lp, gamma: 1 / (k * setup.beam.radiusM ** 2), cx: setup.beam.centerM[0], cy: setup.beam.centerM[1], poly };
+  const sad = newSaddleResult();
+  const invalid = new Uint8Array(nx * ny);
+  let invalidCount = 0;
+  const rd = emptyDerivs();
+  const pre = 1 / (lambda * L); // |1/(iλL)|; the factor 1/i is applied at the end
+  const startQ = new Float64Array(4);
+  let haveStart = false;
+  for (let iy = 0; iy < ny; iy++) {
+    haveStart = false;
+    for (let ix = 0; ix < nx; ix++) {
+      const pix = iy * nx + ix;
+      // ∫∫_outside = −Δφ·Σh − Σ_near R·π·cot(Np/2) + U_all·(n_far_out/2 + n_near/4)
+      let totR = -dphi * rimRe[pix], totI = -dphi * rimIm[pix];
+      const fx = fxs[ix], fy = fys[iy];
+      // Rim-sum derivatives → dU = (1/(iλL))·(−Δφ)·Σδh, with dF/dP = L'/L for the camera point.
+      for (let p = 0; p < np; p++) {
+        const sc = p >= nTerms ? lp / L : 1;
+        const vr = -dphi * dRe[p][pix] * sc, vi = -dphi * dIm[p][pix] * sc;
+        dRe[p][pix] = pre * vi;
+        dIm[p][pix] = -pre * vr;
+      }
+      // Deep inside the shadow both singular points lie well inside the disc: no free-beam term.
+      evalPolynomial(poly, fx, fy, rd);
+      const q0x = fx - lp * rd.x, q0y = fy - lp * rd.y;
+      const rim0 = edgeRadius(setup.disc, Math.atan2(q0y, q0x)).r;
+      const slack = 0.02 * rim0 + 2 * lp * ctx.gamma * Math.hypot(fx - ctx.cx, fy - ctx.cy);
+      if (Math.hypot(q0x, q0y) >= rim0 * (1 - 30 / n) - slack) {
+        const e0 = edgePart(setup, ctx, fx, fy, n, sad, haveStart ? startQ : null);
+        if (!e0) {
+          invalid[pix] = 1;
+          invalidCount++;
+        } else {
+          startQ.set(sad.q);
+          haveStart = true;
+          totR += e0[0];
+          totI += e0[1];
+          // Derivatives of the free-beam and pole terms by central differences of this part alone
+          // (the rim sum is differentiated analytically). dU = −i·d(tot)/(λL).
+          for (let p = 0; p < np; p++) {
+            let plus: [number, number] | null, minus: [number, number] | null, h: number, scale = 1;
+            if (p < nTerms) {
+              h = 1e-5;
+              plus = edgePart(setup, { ...ctx, poly: termPolys[p].plus }, fx, fy, n, sad, startQ);
+              minus = edgePart(setup, { ...ctx, poly: termPolys[p].minus }, fx, fy, n, sad, startQ);
+            } else {
+              h = (1e-9 * setup.disc.radiusM) / 1e-3; // metres in F
+              scale = lp / L; // dF/dP
+              const c = p - nTerms;
+              plus = edgePart(setup, ctx, fx + (c === 0 ? h : 0), fy + (c === 1 ? h : 0), n, sad, startQ);
+              minus = edgePart(setup, ctx, fx - (c === 0 ? h : 0), fy - (c === 1 ? h : 0), n, sad, startQ);
+            }
+            if (plus && minus) {
+              const dr = ((plus[0] - minus[0]) / (2 * h)) * scale;
+              const di = ((plus[1] - minus[1]) / (2 * h)) * scale;
+              dRe[p][pix] += pre * di;
+              dIm[p][pix] -= pre * dr;
+            }
+          }
+        }
+      }
+      // U = tot/(iλL) = −i·tot/(λL)
+      outRe[pix] = pre * totI;
+      outIm[pix] = -pre * totR;
+    }
+  }
+  return { nx, ny, re: outRe, im: outIm, params, dRe, dIm, nPhi: n, invalid, invalidCount };
+}
+
+interface DerivativeTables {
+  nTerms: number;
+  center: boolean;
+  /** per term: XT[t][(ix·n + j)·6] = δn_x (2), δs_x (2), 2·δM_xy·d_x (2); YT[t][(iy·n + j)·4] = δn_y (2), δs_y (2); kz[t][j] */
+  XT: Float64Array[];
+  YT: Float64Array[];
+  KZ: Float64Array[];
+  /** centre: XC[(ix·n + j)·3] = −2κ·M_xx·d_x (2), phase rate x; YC[(iy·n + j)·3] = −2κ·M_yy·d_y (2), phase rate y;
+   * JC[j·8] = −κ·m_x (2), −κ·m_y (2), −2κ·M_xy (2) */
+  XC: Float64Array;
+  YC: Float64Array;
+  JC: Float64Array;
+}
+
+function derivativeTables(
+  setup: BenchSetup,
+  t: RimTables,
+  terms: readonly number[],
+  lambda: number,
+  k: number,
+  kap: number,
+  n: number,
+  nx: number,
+  ny: number,
+  X: Float64Array,
+  Y: Float64Array,
+  fxs: Float64Array,
+  fys: Float64Array,
+  lp: number,
+  center: boolean,
+): DerivativeTables {
+  const XT: Float64Array[] = [];
+  const YT: Float64Array[] = [];
+  const KZ: Float64Array[] = [];
+  const dphi = (2 * Math.PI) / n;
+  const d = emptyDerivs();
   for (const jz of terms) {
     const tp = zernikePolynomialM([{ j: jz, value: 1 }], setup.zernikeRadiusM, lambda);
     const kz = new Float64Array(n);
-    const tt: TermTables = { kz, poly: tp, nxr: mkX(), nxi: mkX(), sxr: mkX(), sxi: mkX(), x2r: mkX(), x2i: mkX(), nyr: mkY(), nyi: mkY(), syr: mkY(), syi: mkY() };
-    const d = emptyDerivs();
-    const dmv = new Float64Array(4 * n); // δm x re/im, y re/im
+    const dmv = new Float64Array(4 * n);
     const dM = new Float64Array(6 * n);
     const mdg = new Float64Array(2 * n);
     const dg = new Float64Array(2 * n);
@@ -236,19 +357,24 @@ export function fastField(
       evalPolynomial(tp, p.x, p.y, d);
       kz[j] = k * d.v;
       const dgx = k * d.x, dgy = k * d.y;
-      dg[2 * j] = dgx; dg[2 * j + 1] = dgy;
-      // δH = k∇∇Z (real); δM = −M δH M
+      dg[2 * j] = dgx;
+      dg[2 * j + 1] = dgy;
+      // δH = k∇∇Z (real); δM = −M·δH·M
       const hxx = k * d.xx, hxy = k * d.xy, hyy = k * d.yy;
-      const Mxx: [number, number] = [t.mxxr[j], t.mxxi[j]], Mxy: [number, number] = [t.mxyr[j], t.mxyi[j]], Myy: [number, number] = [t.myyr[j], t.myyi[j]];
-      // P = δH·M (2x2 complex): rows of δH times columns of M
-      const mul = (a: [number, number], b: [number, number]): [number, number] => [a[0] * b[0] - a[1] * b[1], a[0] * b[1] + a[1] * b[0]];
-      const sc = (s: number, a: [number, number]): [number, number] => [s * a[0], s * a[1]];
-      const add = (a: [number, number], b: [number, number]): [number, number] => [a[0] + b[0], a[1] + b[1]];
-      const p11 = add(sc(hxx, Mxx), sc(hxy, Mxy)), p12 = add(sc(hxx, Mxy), sc(hxy, Myy));
-      const p21 = add(sc(hxy, Mxx), sc(hyy, Mxy)), p22 = add(sc(hxy, Mxy), sc(hyy, Myy));
-      // δM = −M·P
-      const q11 = add(mul(Mxx, p11), mul(Mxy, p21)), q12 = add(mul(Mxx, p12), mul(Mxy, p22)), q22 = add(mul(Mxy, p12), mul(Myy, p22));
-      dM[6 * j] = -q11[0]; dM[6 * j + 1] = -q11[1]; dM[6 * j + 2] = -q12[0]; dM[6 * j + 3] = -q12[1]; dM[6 * j + 4] = -q22[0]; dM[6 * j + 5] = -q22[1];
+      const Mxxr = t.mxxr[j], Mxxi = t.mxxi[j], Mxyr = t.mxyr[j], Mxyi = t.mxyi[j], Myyr = t.myyr[j], Myyi = t.myyi[j];
+      // P = δH·M
+      const p11r = hxx * Mxxr + hxy * Mxyr, p11i = hxx * Mxxi + hxy * Mxyi;
+      const p12r = hxx * Mxyr + hxy * Myyr, p12i = hxx * Mxyi + hxy * Myyi;
+      const p21r = hxy * Mxxr + hyy * Mxyr, p21i = hxy * Mxxi + hyy * Mxyi;
+      const p22r = hxy * Mxyr + hyy * Myyr, p22i = hxy * Mxyi + hyy * Myyi;
+      // Q = M·P ; δM = −Q
+      const q11r = Mxxr * p11r - Mxxi * p11i + Mxyr * p21r - Mxyi * p21i;
+      const q11i = Mxxr * p11i + Mxxi * p11r + Mxyr * p21i + Mxyi * p21r;
+      const q12r = Mxxr * p12r - Mxxi * p12i + Mxyr * p22r - Mxyi * p22i;
+      const q12i = Mxxr * p12i + Mxxi * p12r + Mxyr * p22i + Mxyi * p22r;
+      const q22r = Mxyr * p12r - Mxyi * p12i + Myyr * p22r - Myyi * p22i;
+      const q22i = Mxyr * p12i + Mxyi * p12r + Myyr * p22i + Myyi * p22r;
+      dM[6 * j] = -q11r; dM[6 * j + 1] = -q11i; dM[6 * j + 2] = -q12r; dM[6 * j + 3] = -q12i; dM[6 * j + 4] = -q22r; dM[6 * j + 5] = -q22i;
       const nux = p.dy, nuy = -p.dx;
       dmv[4 * j] = dM[6 * j] * nux + dM[6 * j + 2] * nuy;
       dmv[4 * j + 1] = dM[6 * j + 1] * nux + dM[6 * j + 3] * nuy;
@@ -257,222 +383,186 @@ export function fastField(
       mdg[2 * j] = t.mvxr[j] * dgx + t.mvyr[j] * dgy;
       mdg[2 * j + 1] = t.mvxi[j] * dgx + t.mvyi[j] * dgy;
     }
+    const xt = new Float64Array(nx * n * 6);
+    const yt = new Float64Array(ny * n * 4);
     for (let ix = 0; ix < nx; ix++) {
       for (let j = 0; j < n; j++) {
         const o = ix * n + j;
-        const dr = dxr[o], di = dxi[o];
-        // NX = δm_x·dx + m·δg0
-        tt.nxr[o] = dmv[4 * j] * dr - dmv[4 * j + 1] * di + mdg[2 * j];
-        tt.nxi[o] = dmv[4 * j] * di + dmv[4 * j + 1] * dr + mdg[2 * j + 1];
-        // SX = δMxx·dx² + 2(δg0x·Mxx + δg0y·Mxy)·dx
+        const dr = X[o * 10 + 8], di = X[o * 10 + 9];
+        // δn_x = δm_x·d_x + m·δg0
+        xt[o * 6] = dmv[4 * j] * dr - dmv[4 * j + 1] * di + mdg[2 * j];
+        xt[o * 6 + 1] = dmv[4 * j] * di + dmv[4 * j + 1] * dr + mdg[2 * j + 1];
+        // δs_x = δM_xx·d_x² + 2(δg0x·M_xx + δg0y·M_xy)·d_x
         const d2r = dr * dr - di * di, d2i = 2 * dr * di;
         const cr = 2 * (dg[2 * j] * t.mxxr[j] + dg[2 * j + 1] * t.mxyr[j]);
         const ci = 2 * (dg[2 * j] * t.mxxi[j] + dg[2 * j + 1] * t.mxyi[j]);
-        tt.sxr[o] = dM[6 * j] * d2r - dM[6 * j + 1] * d2i + cr * dr - ci * di;
-        tt.sxi[o] = dM[6 * j] * d2i + dM[6 * j + 1] * d2r + cr * di + ci * dr;
-        tt.x2r[o] = 2 * (dM[6 * j + 2] * dr - dM[6 * j + 3] * di);
-        tt.x2i[o] = 2 * (dM[6 * j + 2] * di + dM[6 * j + 3] * dr);
+        xt[o * 6 + 2] = dM[6 * j] * d2r - dM[6 * j + 1] * d2i + cr * dr - ci * di;
+        xt[o * 6 + 3] = dM[6 * j] * d2i + dM[6 * j + 1] * d2r + cr * di + ci * dr;
+        xt[o * 6 + 4] = 2 * (dM[6 * j + 2] * dr - dM[6 * j + 3] * di);
+        xt[o * 6 + 5] = 2 * (dM[6 * j + 2] * di + dM[6 * j + 3] * dr);
       }
     }
     for (let iy = 0; iy < ny; iy++) {
       for (let j = 0; j < n; j++) {
         const o = iy * n + j;
-        const dr = dyr[o], di = dyi[o];
-        tt.nyr[o] = dmv[4 * j + 2] * dr - dmv[4 * j + 3] * di;
-        tt.nyi[o] = dmv[4 * j + 2] * di + dmv[4 * j + 3] * dr;
+        const dr = Y[o * 8 + 6], di = Y[o * 8 + 7];
+        yt[o * 4] = dmv[4 * j + 2] * dr - dmv[4 * j + 3] * di;
+        yt[o * 4 + 1] = dmv[4 * j + 2] * di + dmv[4 * j + 3] * dr;
         const d2r = dr * dr - di * di, d2i = 2 * dr * di;
         const cr = 2 * (dg[2 * j] * t.mxyr[j] + dg[2 * j + 1] * t.myyr[j]);
         const ci = 2 * (dg[2 * j] * t.mxyi[j] + dg[2 * j + 1] * t.myyi[j]);
-        tt.syr[o] = dM[6 * j + 4] * d2r - dM[6 * j + 5] * d2i + cr * dr - ci * di;
-        tt.syi[o] = dM[6 * j + 4] * d2i + dM[6 * j + 5] * d2r + cr * di + ci * dr;
+        yt[o * 4 + 2] = dM[6 * j + 4] * d2r - dM[6 * j + 5] * d2i + cr * dr - ci * di;
+        yt[o * 4 + 3] = dM[6 * j + 4] * d2i + dM[6 * j + 5] * d2r + cr * di + ci * dr;
       }
     }
-    termTables.push(tt);
+    XT.push(xt);
+    YT.push(yt);
+    KZ.push(kz);
   }
-
-  const termPolys = terms.map((jz) => ({
-    plus: wavefrontPolynomial(lambda, setup.zernikeRadiusM, [...aberrations, { j: jz, waves: 1e-5 }]),
-    minus: wavefrontPolynomial(lambda, setup.zernikeRadiusM, [...aberrations, { j: jz, waves: -1e-5 }]),
-  }));
-  // --- main loop
-  const acc = new Float64Array(2 * np);
-  const wantCenter = !!options.centerDerivatives;
-  const nTerms = terms.length;
-  const ctx: SaddleContext = { k, lpM: lp, gamma: 1 / (k * setup.beam.radiusM ** 2), cx: setup.beam.centerM[0], cy: setup.beam.centerM[1], poly };
-  const sad = newSaddleResult();
-  const invalid = new Uint8Array(nx * ny);
-  let invalidCount = 0;
-  const rd = emptyDerivs();
-  const pre = 1 / (lambda * L); // |1/(iλL)|; the factor 1/i is applied at the end
-
-  // Value-only frames take a lean kernel over interleaved tables (the common case in simulation and
-  // in the fit's function evaluations).
-  let rimRe: Float64Array | null = null;
-  let rimIm: Float64Array | null = null;
-  if (np === 0) {
-    const XT = new Float64Array(nx * n * 8);
-    for (let o = 0; o < nx * n; o++) {
-      const b = o * 8;
-      XT[b] = axr[o]; XT[b + 1] = axi[o]; XT[b + 2] = ndxr[o]; XT[b + 3] = ndxi[o];
-      XT[b + 4] = sxxr[o]; XT[b + 5] = sxxi[o]; XT[b + 6] = x2r[o]; XT[b + 7] = x2i[o];
+  const XC = new Float64Array(center ? nx * n * 3 : 0);
+  const YC = new Float64Array(center ? ny * n * 3 : 0);
+  const JC = new Float64Array(center ? n * 6 : 0);
+  if (center) {
+    for (let j = 0; j < n; j++) {
+      JC[6 * j] = -kap * t.mvxr[j];
+      JC[6 * j + 1] = -kap * t.mvxi[j];
+      JC[6 * j + 2] = -kap * t.mvyr[j];
+      JC[6 * j + 3] = -kap * t.mvyi[j];
+      JC[6 * j + 4] = -2 * kap * t.mxyr[j];
+      JC[6 * j + 5] = -2 * kap * t.mxyi[j];
     }
-    const YT = new Float64Array(ny * n * 8);
-    for (let o = 0; o < ny * n; o++) {
-      const b = o * 8;
-      YT[b] = eyr[o]; YT[b + 1] = eyi[o]; YT[b + 2] = ndyr[o]; YT[b + 3] = ndyi[o];
-      YT[b + 4] = syyr[o]; YT[b + 5] = syyi[o]; YT[b + 6] = dyr[o]; YT[b + 7] = dyi[o];
-    }
-    rimRe = new Float64Array(nx * ny);
-    rimIm = new Float64Array(nx * ny);
-    rimSums(XT, YT, n, nx, ny, rimRe, rimIm);
-  }
-
-  const startQ = new Float64Array(4);
-  let haveStart = false;
-  for (let iy = 0; iy < ny; iy++) {
-    const yo = iy * n;
-    haveStart = false;
     for (let ix = 0; ix < nx; ix++) {
-      const xo = ix * n;
-      let sr = 0, si = 0;
-      if (np) acc.fill(0);
-      if (rimRe && rimIm) {
-        sr = rimRe[iy * nx + ix];
-        si = rimIm[iy * nx + ix];
-      } else for (let j = 0; j < n; j++) {
-        const a = xo + j, b = yo + j;
-        // E = AX·EY
-        const er = axr[a] * eyr[b] - axi[a] * eyi[b];
-        const ei = axr[a] * eyi[b] + axi[a] * eyr[b];
-        // numerator and denominator
-        const nr = ndxr[a] + ndyr[b], ni = ndxi[a] + ndyi[b];
-        const ddr = sxxr[a] + syyr[b] + x2r[a] * dyr[b] - x2i[a] * dyi[b];
-        const ddi = sxxi[a] + syyi[b] + x2r[a] * dyi[b] + x2i[a] * dyr[b];
-        const den = ddr * ddr + ddi * ddi;
-        const isr = ddr / den, isi = -ddi / den; // 1/s
-        const qr = nr * isr - ni * isi, qi = nr * isi + ni * isr; // q = n/s
-        // h = E·q/i = E·q·(−i)
-        const hr = er * qi + ei * qr - 0; // (er+i ei)(qr+i qi) = (er qr − ei qi) + i(er qi + ei qr); times −i → (er qi + ei qr) − i(er qr − ei qi)
-        const hi = -(er * qr - ei * qi);
-        sr += hr;
-        si += hi;
-        if (np) {
-          for (let tI = 0; tI < nTerms; tI++) {
-            const tt = termTables[tI];
-            // δn, δs
-            const dnr = tt.nxr[a] + tt.nyr[b], dni = tt.nxi[a] + tt.nyi[b];
-            const dsr = tt.sxr[a] + tt.syr[b] + tt.x2r[a] * dyr[b] - tt.x2i[a] * dyi[b];
-            const dsi = tt.sxi[a] + tt.syi[b] + tt.x2r[a] * dyi[b] + tt.x2i[a] * dyr[b];
-            // (δn − q·δs)/s
-            const ur = dnr - (qr * dsr - qi * dsi), ui = dni - (qr * dsi + qi * dsr);
-            let vr = ur * isr - ui * isi, vi = ur * isi + ui * isr;
-            // + i·kZ·q
-            const kz = tt.kz[j];
-            vr += -kz * qi;
-            vi += kz * qr;
-            // δh = E·v·(−i)
-            acc[2 * tI] += er * vi + ei * vr;
-            acc[2 * tI + 1] += -(er * vr - ei * vi);
-          }
-          if (wantCenter) {
-            // ∂/∂Fx: E' = E·(−ik(Qx−Fx)/L'), δn = −κ m_x, δs = −2κ(Mxx dx + Mxy dy)
-            for (let c = 0; c < 2; c++) {
-              const isX = c === 0;
-              const qv = isX ? t.qx[j] - fxs[ix] : t.qy[j] - fys[iy];
-              const mvr = isX ? t.mvxr[j] : t.mvyr[j], mvi = isX ? t.mvxi[j] : t.mvyi[j];
-              const m1r = isX ? t.mxxr[j] : t.mxyr[j], m1i = isX ? t.mxxi[j] : t.mxyi[j];
-              const m2r = isX ? t.mxyr[j] : t.myyr[j], m2i = isX ? t.mxyi[j] : t.myyi[j];
-              const dnr = -kap * mvr, dni = -kap * mvi;
-              const xr = dxr[a], xi = dxi[a], yr = dyr[b], yi = dyi[b];
-              const dsr = -2 * kap * (m1r * xr - m1i * xi + m2r * yr - m2i * yi);
-              const dsi = -2 * kap * (m1r * xi + m1i * xr + m2r * yi + m2i * yr);
-              const ur = dnr - (qr * dsr - qi * dsi), ui = dni - (qr * dsi + qi * dsr);
-              let vr = ur * isr - ui * isi, vi = ur * isi + ui * isr;
-              const ph = (-k * qv) / lp; // E' = E·(i·ph)
-              vr += -ph * qi;
-              vi += ph * qr;
-              acc[2 * (nTerms + c)] += er * vi + ei * vr;
-              acc[2 * (nTerms + c) + 1] += -(er * vr - ei * vi);
-            }
-          }
-        }
+      for (let j = 0; j < n; j++) {
+        const o = ix * n + j;
+        const dr = X[o * 10 + 8], di = X[o * 10 + 9];
+        XC[o * 3] = -2 * kap * (t.mxxr[j] * dr - t.mxxi[j] * di);
+        XC[o * 3 + 1] = -2 * kap * (t.mxxr[j] * di + t.mxxi[j] * dr);
+        XC[o * 3 + 2] = (-k * (t.qx[j] - fxs[ix])) / lp;
       }
-      // ∫∫_outside = −Δφ·Σh − Σ_near R·π·cot(Np/2) + U_all·(n_far_out/2 + n_near/4)
-      let totR = -dphi * sr, totI = -dphi * si;
-      const fx = fxs[ix], fy = fys[iy];
-      const pix = iy * nx + ix;
-      // Deep inside the shadow both singular points lie well inside the disc: no free-beam term.
-      evalPolynomial(poly, fx, fy, rd);
-      const q0x = fx - lp * rd.x, q0y = fy - lp * rd.y;
-      const rim0 = edgeRadius(setup.disc, Math.atan2(q0y, q0x)).r;
-      const slack = 0.02 * rim0 + 2 * lp * ctx.gamma * Math.hypot(fx - ctx.cx, fy - ctx.cy);
-      if (Math.hypot(q0x, q0y) < rim0 * (1 - 30 / n) - slack) {
-        // nothing to add
-      } else {
-        const e0 = edgePart(setup, ctx, fx, fy, n, sad, haveStart ? startQ : null);
-        if (e0) {
-          startQ.set(sad.q);
-          haveStart = true;
-        }
-        if (!e0) {
-          invalid[pix] = 1;
-          invalidCount++;
-        } else {
-          totR += e0[0];
-          totI += e0[1];
-          if (np) {
-            // Derivatives of the free-beam and pole terms by central differences of this part alone
-            // (the rim sum above is differentiated analytically).
-            for (let p = 0; p < np; p++) {
-              let plus: [number, number] | null, minus: [number, number] | null, step: number;
-              if (p < nTerms) {
-                step = 1e-5;
-                plus = edgePart(setup, { ...ctx, poly: termPolys[p].plus }, fx, fy, n, sad, startQ);
-                minus = edgePart(setup, { ...ctx, poly: termPolys[p].minus }, fx, fy, n, sad, startQ);
-              } else {
-                step = 1e-9 * setup.disc.radiusM / 1e-3; // metres in F
-                const c = p - nTerms;
-                plus = edgePart(setup, ctx, fx + (c === 0 ? step : 0), fy + (c === 1 ? step : 0), n, sad, startQ);
-                minus = edgePart(setup, ctx, fx - (c === 0 ? step : 0), fy - (c === 1 ? step : 0), n, sad, startQ);
-              }
-              if (plus && minus) {
-                // acc holds Σ of rim-derivative terms that are later scaled by −Δφ
-                acc[2 * p] -= (plus[0] - minus[0]) / (2 * step) / dphi;
-                acc[2 * p + 1] -= (plus[1] - minus[1]) / (2 * step) / dphi;
-              }
-            }
-          }
-        }
-      }
-      // U = tot/(iλL) = −i·tot/(λL)
-      outRe[pix] = pre * totI;
-      outIm[pix] = -pre * totR;
-      for (let p = 0; p < np; p++) {
-        // the rim sums were accumulated without −Δφ; chain rule for the camera point: dF/dP = L'/L
-        const scale = p >= nTerms ? lp / L : 1;
-        const vr = -dphi * acc[2 * p] * scale, vi = -dphi * acc[2 * p + 1] * scale;
-        dRe[p][pix] = pre * vi;
-        dIm[p][pix] = -pre * vr;
+    }
+    for (let iy = 0; iy < ny; iy++) {
+      for (let j = 0; j < n; j++) {
+        const o = iy * n + j;
+        const dr = Y[o * 8 + 6], di = Y[o * 8 + 7];
+        YC[o * 3] = -2 * kap * (t.myyr[j] * dr - t.myyi[j] * di);
+        YC[o * 3 + 1] = -2 * kap * (t.myyr[j] * di + t.myyi[j] * dr);
+        YC[o * 3 + 2] = (-k * (t.qy[j] - fys[iy])) / lp;
       }
     }
   }
-  return { nx, ny, re: outRe, im: outIm, params, dRe, dIm, nPhi: n, invalid, invalidCount };
+  return { nTerms: terms.length, center, XT, YT, KZ, XC, YC, JC };
+}
+
+/**
+ * Rim sums and their analytic derivatives. For h = E·q/i with q = n/s:
+ *   δh = E·[(δn − q·δs)/s + i·δφ·q]/i
+ * where δφ is the change of the phase of E (k·Z_t on the rim for a Zernike term, −k(Q−F)/L' for the
+ * camera point). The camera-point derivatives carry dF/dP = L'/L, applied by the caller… here: the sums
+ * are in F and are scaled by L'/L below via `pScale`.
+ */
+function rimSumsWithDerivatives(
+  X: Float64Array,
+  Y: Float64Array,
+  D: DerivativeTables,
+  n: number,
+  nx: number,
+  ny: number,
+  outRe: Float64Array,
+  outIm: Float64Array,
+  dRe: Float64Array[],
+  dIm: Float64Array[],
+): void {
+  const nT = D.nTerms;
+  const np = nT + (D.center ? 2 : 0);
+  const acc = new Float64Array(2 * np);
+  for (let iy = 0; iy < ny; iy++) {
+    for (let ix = 0; ix < nx; ix++) {
+      let sr = 0, si = 0;
+      acc.fill(0);
+      for (let j = 0; j < n; j++) {
+        const xa = (ix * n + j) * 10;
+        const yb = (iy * n + j) * 8;
+        const axr = X[xa], axi = X[xa + 1];
+        const eyr = Y[yb], eyi = Y[yb + 1];
+        const er = axr * eyr - axi * eyi;
+        const ei = axr * eyi + axi * eyr;
+        const nr = X[xa + 2] + Y[yb + 2];
+        const ni = X[xa + 3] + Y[yb + 3];
+        const x2r = X[xa + 6], x2i = X[xa + 7], dyr = Y[yb + 6], dyi = Y[yb + 7];
+        const ddr = X[xa + 4] + Y[yb + 4] + x2r * dyr - x2i * dyi;
+        const ddi = X[xa + 5] + Y[yb + 5] + x2r * dyi + x2i * dyr;
+        const inv = 1 / (ddr * ddr + ddi * ddi);
+        const isr = ddr * inv, isi = -ddi * inv; // 1/s
+        const qr = nr * isr - ni * isi, qi = nr * isi + ni * isr; // q = n/s
+        sr += er * qi + ei * qr;
+        si -= er * qr - ei * qi;
+        for (let tt = 0; tt < nT; tt++) {
+          const xt = D.XT[tt], yt = D.YT[tt];
+          const xo = (ix * n + j) * 6, yo = (iy * n + j) * 4;
+          const dnr = xt[xo] + yt[yo], dni = xt[xo + 1] + yt[yo + 1];
+          const dsr = xt[xo + 2] + yt[yo + 2] + xt[xo + 4] * dyr - xt[xo + 5] * dyi;
+          const dsi = xt[xo + 3] + yt[yo + 3] + xt[xo + 4] * dyi + xt[xo + 5] * dyr;
+          const ur = dnr - (qr * dsr - qi * dsi), ui = dni - (qr * dsi + qi * dsr);
+          const kz = D.KZ[tt][j];
+          const vr = ur * isr - ui * isi - kz * qi;
+          const vi = ur * isi + ui * isr + kz * qr;
+          acc[2 * tt] += er * vi + ei * vr;
+          acc[2 * tt + 1] -= er * vr - ei * vi;
+        }
+        if (D.center) {
+          const xo = (ix * n + j) * 3, yo = (iy * n + j) * 3, jo = j * 6;
+          const dxr = X[xa + 8], dxi = X[xa + 9];
+          // x: δn = −κ m_x, δs = −2κ(M_xx d_x + M_xy d_y), phase rate −k(Qx − Fx)/L'
+          {
+            const dnr = D.JC[jo], dni = D.JC[jo + 1];
+            const dsr = D.XC[xo] + D.JC[jo + 4] * dyr - D.JC[jo + 5] * dyi;
+            const dsi = D.XC[xo + 1] + D.JC[jo + 4] * dyi + D.JC[jo + 5] * dyr;
+            const ur = dnr - (qr * dsr - qi * dsi), ui = dni - (qr * dsi + qi * dsr);
+            const ph = D.XC[xo + 2];
+            const vr = ur * isr - ui * isi - ph * qi;
+            const vi = ur * isi + ui * isr + ph * qr;
+            acc[2 * nT] += er * vi + ei * vr;
+            acc[2 * nT + 1] -= er * vr - ei * vi;
+          }
+          // y: δn = −κ m_y, δs = −2κ(M_xy d_x + M_yy d_y)
+          {
+            const dnr = D.JC[jo + 2], dni = D.JC[jo + 3];
+            const dsr = D.YC[yo] + D.JC[jo + 4] * dxr - D.JC[jo + 5] * dxi;
+            const dsi = D.YC[yo + 1] + D.JC[jo + 4] * dxi + D.JC[jo + 5] * dxr;
+            const ur = dnr - (qr * dsr - qi * dsi), ui = dni - (qr * dsi + qi * dsr);
+            const ph = D.YC[yo + 2];
+            const vr = ur * isr - ui * isi - ph * qi;
+            const vi = ur * isi + ui * isr + ph * qr;
+            acc[2 * nT + 2] += er * vi + ei * vr;
+            acc[2 * nT + 3] -= er * vr - ei * vi;
+          }
+        }
+      }
+      const pix = iy * nx + ix;
+      outRe[pix] = sr;
+      outIm[pix] = si;
+      for (let p = 0; p < np; p++) {
+        dRe[p][pix] = acc[2 * p];
+        dIm[p][pix] = acc[2 * p + 1];
+      }
+    }
+  }
 }
 
 /**
  * Σ_j h_j for every camera point, h = E·n/(i·s) (see fastField), over interleaved tables:
- * XT[(ix·n + j)·8 + ·] = AX (2), n_x (2), s_xx (2), 2·M_xy·d_x (2);
+ * XT[(ix·n + j)·10 + ·] = AX (2), n_x (2), s_xx (2), 2·M_xy·d_x (2), d_x (2);
  * YT[(iy·n + j)·8 + ·] = E_y (2), n_y (2), s_yy (2), d_y (2).
  */
 function rimSums(XT: Float64Array, YT: Float64Array, n: number, nx: number, ny: number, outRe: Float64Array, outIm: Float64Array): void {
   for (let iy = 0; iy < ny; iy++) {
     const yo = iy * n * 8;
     for (let ix = 0; ix < nx; ix++) {
-      let xa = ix * n * 8;
+      let xa = ix * n * 10;
       let yb = yo;
       let sr = 0;
       let si = 0;
-      for (let j = 0; j < n; j++, xa += 8, yb += 8) {
+      for (let j = 0; j < n; j++, xa += 10, yb += 8) {
         const axr = XT[xa], axi = XT[xa + 1];
         const eyr = YT[yb], eyi = YT[yb + 1];
         const er = axr * eyr - axi * eyi;

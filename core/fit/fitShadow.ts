@@ -1,0 +1,448 @@
+/**
+ * Fit camera frames of the disc's shadow for the beam's low-order Zernike aberrations.
+ *
+ * Weighted least squares under the camera noise model, by Levenberg–Marquardt with the fast model's
+ * analytic Jacobian, on binned super-pixels. The ring pattern makes the cost surface multi-modal, so the
+ * fit starts from a coarse search on defocus (with scale and background solved linearly), then tries the
+ * sign-flipped even-m alternative (the rim phase alone cannot tell +W from −W rotated by 180°; physics notes
+ * §3). A suspect minimum is detected from χ² and from structure in the residuals and is reported as such.
+ */
+import { ansiToNM, peakToValley, zernikeName } from '../zernike/index.ts';
+import { effectiveDistanceM } from '../optics/geometry.ts';
+import { levenbergMarquardt, invertSPD, type LMResult } from './levenbergMarquardt.ts';
+import {
+  binFrame,
+  evaluateModel,
+  parameterCount,
+  parameterNames,
+  rimSamplesFor,
+  superPixelVariance,
+  type BinnedFrame,
+  type FitFrameInput,
+  type ModelLayout,
+} from './frameModel.ts';
+import { RESULT_FORMAT, type FitResult, type Termination } from './result.ts';
+
+export const DEFAULT_TERMS = [3, 4, 5, 7, 8] as const;
+export const OPTIONAL_TERMS = [6, 9, 12] as const;
+const ALLOWED_TERMS = new Set<number>([...DEFAULT_TERMS, ...OPTIONAL_TERMS]);
+
+export interface FitOptions {
+  terms?: readonly number[];
+  /** Free a camera-distance offset shared by all frames (degenerate with defocus in one frame). */
+  freeDistance?: boolean;
+  /** Free the disc radius within ±toleranceM (a Gaussian prior of that width). */
+  freeDiscRadius?: boolean;
+  discRadiusToleranceM?: number;
+  /** Super-pixel size in camera pixels; 'auto' picks ~1/5 of the ring period. */
+  binning?: number | 'auto';
+  /** Initial pattern centre per frame, camera metres relative to the frame centre (default 0, 0). */
+  initialCentersM?: [number, number][];
+  /** Whether the disc's shape is calibrated (drops the disc-shape warning). */
+  discCalibrated?: boolean;
+  software?: string;
+  maxIterations?: number;
+  /** Progress 0..1 with a stage name; return false to cancel. */
+  onProgress?: (fraction: number, stage: string) => boolean | void;
+}
+
+export class FitInputError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'RangeError';
+  }
+}
+
+function cancelledError(): Error {
+  const e = new Error('fit cancelled');
+  e.name = 'CancelledError';
+  return e;
+}
+
+/** Ring period on the camera, λL/(2a): the finest structure inside the shadow. */
+function ringPeriodM(f: FitFrameInput): number {
+  return (f.setup.wavelengthM * f.setup.camera.distanceM) / (2 * f.setup.disc.radiusM);
+}
+
+function autoBinning(frames: FitFrameInput[]): number {
+  let b = 16;
+  for (const f of frames) b = Math.min(b, Math.floor(ringPeriodM(f) / (5 * f.setup.camera.pixelPitchM)));
+  return Math.max(1, b);
+}
+
+/** Weighted linear least squares for scale and background given the model intensity. */
+function solveScaleBackground(data: Float64Array, I: Float64Array, w: Float64Array, from: number, to: number): [number, number] {
+  let sw = 0, sI = 0, sII = 0, sd = 0, sId = 0;
+  for (let i = from; i < to; i++) {
+    sw += w[i];
+    sI += w[i] * I[i];
+    sII += w[i] * I[i] * I[i];
+    sd += w[i] * data[i];
+    sId += w[i] * I[i] * data[i];
+  }
+  const det = sw * sII - sI * sI;
+  if (!(Math.abs(det) > 0)) return [sd / Math.max(sI, 1e-300), 0];
+  return [(sw * sId - sI * sd) / det, (sII * sd - sI * sId) / det];
+}
+
+interface Problem {
+  frames: BinnedFrame[];
+  layout: ModelLayout;
+  data: Float64Array;
+  rim: number[];
+  sigma: Float64Array;
+  prior: { index: number; sigma: number } | null;
+}
+
+function makeWeighted(pr: Problem) {
+  const np = parameterCount(pr.layout);
+  const extra = pr.prior ? 1 : 0;
+  return {
+    nParams: np,
+    evaluate(p: Float64Array, withJacobian: boolean) {
+      const ev = evaluateModel(pr.frames, pr.layout, p, withJacobian, pr.rim);
+      const m = pr.data.length;
+      const r = new Float64Array(m + extra);
+      for (let i = 0; i < m; i++) r[i] = (pr.data[i] - ev.model[i]) / pr.sigma[i];
+      let J: Float64Array | null = null;
+      if (ev.jacobian) {
+        J = new Float64Array((m + extra) * np);
+        for (let i = 0; i < m; i++) {
+          const s = 1 / pr.sigma[i];
+          for (let k = 0; k < np; k++) J[i * np + k] = ev.jacobian[i * np + k] * s;
+        }
+      }
+      if (pr.prior) {
+        r[m] = -p[pr.prior.index] / pr.prior.sigma;
+        if (J) J[m * np + pr.prior.index] = 1 / pr.prior.sigma;
+      }
+      return { r, J };
+    },
+  };
+}
+
+function chi2At(pr: Problem, p: Float64Array): number {
+  const w = makeWeighted(pr).evaluate(p, false).r;
+  let s = 0;
+  for (const v of w) s += v * v;
+  return s;
+}
+
+/** Indices (in the coefficient list) of terms with even azimuthal order m (defocus, astigmatism, spherical). */
+function evenTermIndices(terms: number[]): number[] {
+  return terms.map((j, i) => (ansiToNM(j).m % 2 === 0 ? i : -1)).filter((i) => i >= 0);
+}
+
+export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): FitResult {
+  const t0 = Date.now();
+  if (inputs.length === 0) throw new FitInputError('no frames to fit');
+  const terms = [...(options.terms ?? DEFAULT_TERMS)];
+  for (const j of terms) {
+    if (!ALLOWED_TERMS.has(j)) {
+      throw new FitInputError(
+        `term j = ${j} cannot be fitted: choose from ${[...ALLOWED_TERMS].sort((a, b) => a - b).join(', ')} (piston and tilt are absorbed by the pattern centre)`,
+      );
+    }
+  }
+  if (new Set(terms).size !== terms.length) throw new FitInputError(`a term is listed twice in ${terms.join(',')}`);
+  const progress = options.onProgress;
+  const step = (f: number, stage: string) => {
+    if (progress && progress(f, stage) === false) throw cancelledError();
+  };
+  const warnings: string[] = [];
+  const layout: ModelLayout = {
+    terms,
+    nFrames: inputs.length,
+    freeDistance: !!options.freeDistance,
+    freeDiscRadius: !!options.freeDiscRadius,
+  };
+  const np = parameterCount(layout);
+  const nz = terms.length;
+
+  // --- binning and data
+  const binning = options.binning === undefined || options.binning === 'auto' ? autoBinning(inputs) : Math.max(1, Math.floor(options.binning));
+  const frames = inputs.map((f) => binFrame(f, binning));
+  for (let f = 0; f < frames.length; f++) {
+    if (frames[f].used.length < 4 * np) throw new FitInputError(`frame ${f + 1}: only ${frames[f].used.length} usable super-pixels in the region of interest`);
+  }
+  const data = new Float64Array(frames.reduce((s, f) => s + f.used.length, 0));
+  {
+    let o = 0;
+    for (const f of frames) {
+      data.set(f.data, o);
+      o += f.data.length;
+    }
+  }
+  const rim = rimSamplesFor(frames, terms.map((j) => ({ j, waves: 0.3 })));
+  const prior =
+    layout.freeDiscRadius
+      ? { index: nz + 4 * inputs.length + (layout.freeDistance ? 1 : 0), sigma: options.discRadiusToleranceM ?? 0.01 * inputs[0].setup.disc.radiusM }
+      : null;
+
+  // --- start: centres, coarse search on defocus with scale and background solved linearly
+  step(0, 'coarse search');
+  const p = new Float64Array(np);
+  for (let f = 0; f < inputs.length; f++) {
+    const c = options.initialCentersM?.[f] ?? [0, 0];
+    p[nz + 4 * f] = c[0];
+    p[nz + 4 * f + 1] = c[1];
+    p[nz + 4 * f + 2] = 1;
+  }
+  const dataWeights = new Float64Array(data.length);
+  {
+    let row = 0;
+    for (const f of frames) {
+      const r2 = f.input.readNoiseCounts ** 2;
+      for (let u = 0; u < f.used.length; u++, row++) dataWeights[row] = f.pixelsPer / (Math.max(data[row], 1) * f.input.gainCountsPerElectron + r2);
+    }
+  }
+  const setScaleBackground = (q: Float64Array): number => {
+    const ev = evaluateModel(frames, layout, q, false, rim);
+    let row = 0;
+    let c2 = 0;
+    for (let f = 0; f < frames.length; f++) {
+      const n = frames[f].used.length;
+      const [s, b] = solveScaleBackground(data, ev.intensity, dataWeights, row, row + n);
+      q[nz + 4 * f + 2] = s;
+      q[nz + 4 * f + 3] = b;
+      for (let i = row; i < row + n; i++) c2 += dataWeights[i] * (data[i] - s * ev.intensity[i] - b) ** 2;
+      row += n;
+    }
+    return c2;
+  };
+  const iDefocus = terms.indexOf(4);
+  let best = Float64Array.from(p);
+  let bestC2 = setScaleBackground(best);
+  if (iDefocus >= 0) {
+    const grid: number[] = [];
+    for (let c = -0.4; c <= 0.4 + 1e-9; c += 0.025) grid.push(Math.round(c * 1000) / 1000);
+    grid.forEach((c, gi) => {
+      const q = Float64Array.from(p);
+      q[iDefocus] = c;
+      const c2 = setScaleBackground(q);
+      if (c2 < bestC2) {
+        bestC2 = c2;
+        best = q;
+      }
+      step((0.25 * (gi + 1)) / grid.length, 'coarse search');
+    });
+  }
+
+  // --- noise weights from the model at the start, then LM; weights refreshed once at the solution
+  const problem: Problem = { frames, layout, data, rim, sigma: new Float64Array(data.length), prior };
+  const refreshSigma = (q: Float64Array) => {
+    const ev = evaluateModel(frames, layout, q, false, rim);
+    const v = superPixelVariance(frames, layout, q, ev.intensity);
+    for (let i = 0; i < v.length; i++) problem.sigma[i] = Math.sqrt(Math.max(v[i], 1e-12));
+  };
+  refreshSigma(best);
+  const maxIt = options.maxIterations ?? 60;
+  let iterationsTotal = 0;
+  const runLM = (start: Float64Array, from: number, span: number): LMResult => {
+    const res = levenbergMarquardt(makeWeighted(problem), start, {
+      maxIterations: maxIt,
+      onIteration: (it) => {
+        if (progress && progress(Math.min(from + (span * it) / 12, from + span), 'fitting') === false) return false;
+        return true;
+      },
+    });
+    iterationsTotal += res.iterations;
+    if (res.termination === 'cancelled') throw cancelledError();
+    return res;
+  };
+  let sol = runLM(best, 0.25, 0.35);
+  refreshSigma(sol.params);
+  sol = runLM(sol.params, 0.6, 0.1);
+
+  // --- the sign-flipped even-m alternative
+  const even = evenTermIndices(terms);
+  let alternativeChi2: number | null = null;
+  if (even.length > 0) {
+    const alt = Float64Array.from(sol.params);
+    for (const i of even) alt[i] = -alt[i];
+    const altStartC2 = chi2At(problem, alt);
+    // Only pursue it when it starts within reach of the current minimum.
+    if (altStartC2 < sol.chi2 + 50 + 0.5 * sol.chi2) {
+      const altSol = runLM(alt, 0.7, 0.15);
+      alternativeChi2 = altSol.chi2;
+      if (altSol.chi2 < sol.chi2) {
+        alternativeChi2 = sol.chi2;
+        sol = altSol;
+      }
+    } else alternativeChi2 = altStartC2;
+  }
+  step(0.9, 'uncertainties');
+
+  // --- statistics
+  const m = data.length + (prior ? 1 : 0);
+  const dof = Math.max(1, m - np);
+  const chi2PerDof = sol.chi2 / dof;
+  const cov = invertSPD(sol.normalMatrix, np);
+  const scaleCov = Math.max(1, chi2PerDof);
+  const sigmaOf = (k: number) => (cov ? Math.sqrt(Math.max(cov[k * np + k], 0) * scaleCov) : NaN);
+  const names = parameterNames(layout);
+  void names;
+  const lambda = inputs[0].setup.wavelengthM;
+  const rho = inputs[0].setup.zernikeRadiusM;
+  const coeffs = terms.map((j, k) => ({ j, value: sol.params[k] }));
+  const termRows = terms.map((j, k) => ({
+    j,
+    name: zernikeName(j),
+    waves: sol.params[k],
+    sigmaWaves: sigmaOf(k),
+    nm: sol.params[k] * lambda * 1e9,
+    sigmaNm: sigmaOf(k) * lambda * 1e9,
+  }));
+  const correlation = terms.map((_, a) =>
+    terms.map((__, b) => {
+      if (!cov) return NaN;
+      const d = Math.sqrt(cov[a * np + a] * cov[b * np + b]);
+      return d > 0 ? cov[a * np + b] / d : NaN;
+    }),
+  );
+  // RMS without piston and tilt (orthonormal terms: root of the sum of squares), Strehl by Maréchal.
+  let rms2 = 0;
+  for (const c of coeffs) rms2 += c.value * c.value;
+  const rms = Math.sqrt(rms2);
+  let varRms = 0;
+  if (cov && rms > 0) {
+    for (let a = 0; a < nz; a++) for (let b = 0; b < nz; b++) varRms += ((coeffs[a].value * coeffs[b].value) / rms2) * cov[a * np + b] * scaleCov;
+  }
+  const sigmaRms = Math.sqrt(varRms);
+  const strehl = Math.exp(-((2 * Math.PI * rms) ** 2));
+  const sigmaStrehl = strehl * 2 * (2 * Math.PI) ** 2 * rms * sigmaRms;
+  const pv = peakToValley(coeffs, { excludePistonTilt: true });
+  const c4 = iDefocus >= 0 ? sol.params[iDefocus] : 0;
+  // W = c4·λ·√3(2ρ²−1): the quadratic part λ·c4·2√3·r²/ρz² equals r²/(2R) → R = ρz²/(4√3·λ·c4).
+  const residualCurvatureRadius_m = iDefocus >= 0 && c4 !== 0 ? (rho * rho) / (4 * Math.sqrt(3) * lambda * c4) : null;
+
+  // --- warnings
+  const byM = new Map<number, number[]>();
+  for (const j of terms) {
+    const { m: mm } = ansiToNM(j);
+    byM.set(mm, [...(byM.get(mm) ?? []), j]);
+  }
+  for (const [mm, js] of byM) {
+    if (js.length > 1) {
+      warnings.push(
+        `terms ${js.map((j) => `j=${j} (${zernikeName(j)})`).join(' and ')} share the azimuthal order m = ${mm}: the rim sees them almost alike, so their coefficients are strongly correlated and depend on the set of terms fitted`,
+      );
+    }
+  }
+  if (layout.freeDistance) {
+    const iL = nz + 4 * inputs.length;
+    const corr = cov && iDefocus >= 0 ? cov[iDefocus * np + iL] / Math.sqrt(cov[iDefocus * np + iDefocus] * cov[iL * np + iL]) : NaN;
+    const distances = new Set(inputs.map((f) => f.setup.camera.distanceM));
+    warnings.push(
+      `the camera distance was freed: defocus and distance trade against each other (correlation ${Number.isFinite(corr) ? corr.toFixed(3) : 'n/a'})${distances.size < 2 ? '; frames at two distances a known step apart separate them' : ''}`,
+    );
+  }
+  if (chi2PerDof > 1.5) {
+    warnings.push(
+      `the noise model does not explain the residuals (χ²/dof = ${chi2PerDof.toFixed(2)}): the uncertainties were scaled up by √(χ²/dof) = ${Math.sqrt(chi2PerDof).toFixed(2)}`,
+    );
+  }
+  if (alternativeChi2 !== null && Math.abs(alternativeChi2 - sol.chi2) < 9) {
+    warnings.push(
+      `the sign of the even terms (defocus, astigmatism) is poorly determined: flipping it changes χ² by only ${Math.abs(alternativeChi2 - sol.chi2).toFixed(1)}; a frame that holds the shadow edge settles it`,
+    );
+  }
+  if (!options.discCalibrated) {
+    warnings.push('the disc shape is not calibrated: astigmatism may include disc ellipticity (measure with the disc turned by 90° to separate them)');
+  }
+  // Residual structure: normalised residuals grouped in rings and sectors around the fitted centre.
+  const structure = residualStructure(problem, sol.params);
+  let trusted = true;
+  if (structure.excess > 5 && chi2PerDof > 1.3) {
+    trusted = false;
+    warnings.push(
+      `the residuals are structured (ring/sector statistic ${structure.statistic.toFixed(0)} for ${structure.groups} groups): the fit may have stopped in a wrong local minimum — do not use these coefficients`,
+    );
+  }
+  const ringsOnly = inputs.every((f, i) => {
+    const shadowRadiusPx = (f.setup.disc.radiusM * f.setup.camera.distanceM) / effectiveDistanceM(f.setup.camera.distanceM, f.setup.beam.curvatureRadiusM) / f.setup.camera.pixelPitchM;
+    return frames[i].input.regionRadiusPx < 0.95 * shadowRadiusPx;
+  });
+  if (ringsOnly) warnings.push('the region holds only the inside of the shadow: defocus and coma are weakly determined without the shadow edge');
+
+  const termination: Termination = sol.termination;
+  const centers: [number, number][] = inputs.map((_, f) => [sol.params[nz + 4 * f], sol.params[nz + 4 * f + 1]]);
+  step(1, 'done');
+  return {
+    format: RESULT_FORMAT,
+    software: options.software ?? 'shadowfront',
+    wavelength_m: lambda,
+    zernike: { radius_m: rho, basis: 'ANSI Z80.28 / ISO 24157 Zernike polynomials, unit RMS over the normalisation radius', terms: termRows, correlation },
+    rmsWaves: rms,
+    sigmaRmsWaves: sigmaRms,
+    pvWaves: pv,
+    strehl,
+    sigmaStrehl,
+    residualCurvatureRadius_m,
+    center_m: centers[0],
+    centers_m: centers,
+    chi2PerDof,
+    dof,
+    termination,
+    iterations: iterationsTotal,
+    elapsedMs: Date.now() - t0,
+    regions: frames.map((f, i) => {
+      const pitch = f.input.setup.camera.pixelPitchM;
+      return {
+        centerPx: [(f.input.widthPx - 1) / 2 + centers[i][0] / pitch, (f.input.heightPx - 1) / 2 - centers[i][1] / pitch] as [number, number],
+        radiusPx: f.input.regionRadiusPx,
+        binning: f.binning,
+      };
+    }),
+    settings: {
+      terms,
+      binning,
+      freeDistance: layout.freeDistance,
+      freeDiscRadius: layout.freeDiscRadius,
+      rimSamples: rim,
+      noiseModel: inputs.map((f) => ({ readNoiseCounts: f.readNoiseCounts, gainCountsPerElectron: f.gainCountsPerElectron, frames: f.frameCount, darks: f.darkCount })),
+    },
+    warnings,
+    trusted,
+  };
+}
+
+/** χ²-like statistic of residual means over rings × 8 sectors; excess in standard deviations above its expectation. */
+function residualStructure(pr: Problem, p: Float64Array): { statistic: number; groups: number; excess: number } {
+  const ev = evaluateModel(pr.frames, pr.layout, p, false, pr.rim);
+  const nz = pr.layout.terms.length;
+  const sums = new Map<string, { s: number; n: number }>();
+  let row = 0;
+  for (let f = 0; f < pr.frames.length; f++) {
+    const fr = pr.frames[f];
+    const inp = fr.input;
+    const pitch = inp.setup.camera.pixelPitchM;
+    const cx = p[nz + 4 * f], cy = p[nz + 4 * f + 1];
+    const ring = ringPeriodM(inp) / 2;
+    for (let u = 0; u < fr.used.length; u++, row++) {
+      const cell = fr.used[u];
+      const bx = cell % fr.nbx;
+      const by = (cell - bx) / fr.nbx;
+      const x = (bx * fr.binning + (fr.binning - 1) / 2 - (inp.widthPx - 1) / 2) * pitch - cx;
+      const y = -(by * fr.binning + (fr.binning - 1) / 2 - (inp.heightPx - 1) / 2) * pitch - cy;
+      const ri = Math.floor(Math.hypot(x, y) / ring);
+      const si = Math.floor(((Math.atan2(y, x) + Math.PI) / (2 * Math.PI)) * 8) % 8;
+      const key = `${f}:${ri}:${si}`;
+      const e = sums.get(key) ?? { s: 0, n: 0 };
+      e.s += (pr.data[row] - ev.model[row]) / pr.sigma[row];
+      e.n++;
+      sums.set(key, e);
+    }
+  }
+  let stat = 0;
+  let groups = 0;
+  for (const { s, n } of sums.values()) {
+    if (n < 4) continue;
+    stat += (s * s) / n;
+    groups++;
+  }
+  const excess = groups > 0 ? (stat - groups) / Math.sqrt(2 * groups) : 0;
+  return { statistic: stat, groups, excess };
+}
+
+export type { FitFrameInput };

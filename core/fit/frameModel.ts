@@ -1,0 +1,249 @@
+/**
+ * The fit's forward model for one or more prepared camera frames: binned super-pixels inside each frame's
+ * region of interest, the fast diffraction model evaluated at 2×2 Gauss–Legendre points of every
+ * super-pixel (pixel-area integration), and the camera noise model (shot noise plus read noise).
+ *
+ * Parameters, in order: the Zernike coefficients (waves), then per frame [centre x (m), centre y (m),
+ * scale (counts per unit relative intensity), background (counts)], then optionally a camera-distance
+ * offset shared by all frames (m) and a disc-radius offset (m).
+ */
+import type { BenchSetup, ZernikeTerm } from '../setup/types.ts';
+import { fastField, chooseRimSamples } from '../optics/fast/rimModel.ts';
+
+export interface FitFrameInput {
+  /** Setup of this frame (its own camera distance, disc angle). */
+  setup: BenchSetup;
+  /** Averaged, dark-subtracted counts in the lab orientation, row-major, first row on top. */
+  counts: Float64Array;
+  widthPx: number;
+  heightPx: number;
+  /** 1 = pixel excluded (saturated, hot). */
+  mask: Uint8Array | null;
+  /** How many frames were averaged, and how many darks subtracted (for the noise model). */
+  frameCount: number;
+  darkCount: number;
+  /** Read noise of one raw frame, RMS counts. */
+  readNoiseCounts: number;
+  /** Camera gain in counts per photo-electron (shot-noise variance = gain·signal). */
+  gainCountsPerElectron: number;
+  /** Region of interest: centre (pixels, may be fractional) and radius (pixels). */
+  regionCenterPx: [number, number];
+  regionRadiusPx: number;
+}
+
+export interface BinnedFrame {
+  input: FitFrameInput;
+  binning: number;
+  /** Super-pixel columns/rows of the binned grid (full rectangle) and which of them are used. */
+  nbx: number;
+  nby: number;
+  used: Int32Array;
+  /** Data mean per used super-pixel. */
+  data: Float64Array;
+  /** Sample axes (2 per super-pixel), camera metres relative to the frame centre. */
+  xs: Float64Array;
+  ys: Float64Array;
+  /** Pixels per super-pixel that are unmasked (all for used ones). */
+  pixelsPer: number;
+}
+
+const GL2 = 0.5 / Math.sqrt(3);
+
+/** Bin a frame into b×b super-pixels inside the region; super-pixels with any masked pixel are dropped. */
+export function binFrame(input: FitFrameInput, binning: number): BinnedFrame {
+  const b = Math.max(1, Math.floor(binning));
+  const nbx = Math.floor(input.widthPx / b);
+  const nby = Math.floor(input.heightPx / b);
+  const p = input.setup.camera.pixelPitchM;
+  const used: number[] = [];
+  const data: number[] = [];
+  const [rcx, rcy] = input.regionCenterPx;
+  const r2 = input.regionRadiusPx * input.regionRadiusPx;
+  for (let by = 0; by < nby; by++) {
+    for (let bx = 0; bx < nbx; bx++) {
+      const cxPx = bx * b + (b - 1) / 2;
+      const cyPx = by * b + (b - 1) / 2;
+      if ((cxPx - rcx) ** 2 + (cyPx - rcy) ** 2 > r2) continue;
+      let s = 0;
+      let bad = false;
+      for (let y = by * b; y < by * b + b && !bad; y++) {
+        for (let x = bx * b; x < bx * b + b; x++) {
+          const k = y * input.widthPx + x;
+          if (input.mask && input.mask[k]) {
+            bad = true;
+            break;
+          }
+          s += input.counts[k];
+        }
+      }
+      if (bad) continue;
+      used.push(by * nbx + bx);
+      data.push(s / (b * b));
+    }
+  }
+  // Super-pixel (bx, by) covers columns bx·b … bx·b+b−1: its centre in camera metres relative to the frame centre.
+  const xs = new Float64Array(2 * nbx);
+  const ys = new Float64Array(2 * nby);
+  for (let bx = 0; bx < nbx; bx++) {
+    const xc = (bx * b + (b - 1) / 2 - (input.widthPx - 1) / 2) * p;
+    xs[2 * bx] = xc - GL2 * b * p;
+    xs[2 * bx + 1] = xc + GL2 * b * p;
+  }
+  for (let by = 0; by < nby; by++) {
+    const yc = -(by * b + (b - 1) / 2 - (input.heightPx - 1) / 2) * p;
+    ys[2 * by] = yc + GL2 * b * p;
+    ys[2 * by + 1] = yc - GL2 * b * p;
+  }
+  return { input, binning: b, nbx, nby, used: Int32Array.from(used), data: Float64Array.from(data), xs, ys, pixelsPer: b * b };
+}
+
+export interface ModelLayout {
+  terms: number[];
+  nFrames: number;
+  freeDistance: boolean;
+  freeDiscRadius: boolean;
+}
+
+export function parameterCount(l: ModelLayout): number {
+  return l.terms.length + 4 * l.nFrames + (l.freeDistance ? 1 : 0) + (l.freeDiscRadius ? 1 : 0);
+}
+
+export function parameterNames(l: ModelLayout): string[] {
+  const names = l.terms.map((j) => `z${j}`);
+  for (let f = 0; f < l.nFrames; f++) names.push(`cx${f}`, `cy${f}`, `scale${f}`, `bg${f}`);
+  if (l.freeDistance) names.push('dL');
+  if (l.freeDiscRadius) names.push('da');
+  return names;
+}
+
+/** Setup with the shared distance and disc-radius offsets applied. */
+export function offsetSetup(setup: BenchSetup, dL: number, da: number): BenchSetup {
+  if (dL === 0 && da === 0) return setup;
+  return {
+    ...setup,
+    camera: { ...setup.camera, distanceM: setup.camera.distanceM + dL },
+    disc: { ...setup.disc, radiusM: setup.disc.radiusM + da },
+  };
+}
+
+export interface ModelEvaluation {
+  /** Model counts per used super-pixel, frames concatenated. */
+  model: Float64Array;
+  /** Model intensity (relative) per used super-pixel (for the noise model). */
+  intensity: Float64Array;
+  /** ∂model/∂p, row-major [i·nParams + k], or null. */
+  jacobian: Float64Array | null;
+}
+
+/**
+ * Evaluate the model for all frames at parameters p. `rimSamples` per frame fixes N_φ so that the
+ * model is a smooth function of p during a fit.
+ */
+export function evaluateModel(frames: BinnedFrame[], layout: ModelLayout, p: Float64Array, withJacobian: boolean, rimSamples: number[]): ModelEvaluation {
+  const nz = layout.terms.length;
+  const np = parameterCount(layout);
+  const total = frames.reduce((s, f) => s + f.used.length, 0);
+  const model = new Float64Array(total);
+  const intensity = new Float64Array(total);
+  const jac = withJacobian ? new Float64Array(total * np) : null;
+  const aberrations: ZernikeTerm[] = layout.terms.map((j, k) => ({ j, waves: p[k] }));
+  let extra = nz + 4 * layout.nFrames;
+  const dL = layout.freeDistance ? p[extra++] : 0;
+  const da = layout.freeDiscRadius ? p[extra++] : 0;
+  let row = 0;
+  for (let f = 0; f < frames.length; f++) {
+    const fr = frames[f];
+    const base = nz + 4 * f;
+    const cx = p[base], cy = p[base + 1], scale = p[base + 2], bg = p[base + 3];
+    const setup = offsetSetup(fr.input.setup, dL, da);
+    const xs = Float64Array.from(fr.xs, (v) => v - cx);
+    const ys = Float64Array.from(fr.ys, (v) => v - cy);
+    const field = fastField(setup, aberrations, xs, ys, {
+      nPhi: rimSamples[f],
+      derivativeTerms: withJacobian ? layout.terms : undefined,
+      centerDerivatives: withJacobian,
+    });
+    const nx = xs.length;
+    const sampleI = (k: number) => field.re[k] * field.re[k] + field.im[k] * field.im[k];
+    const dI = (param: number, k: number) => 2 * (field.re[k] * field.dRe[param][k] + field.im[k] * field.dIm[param][k]);
+    for (let u = 0; u < fr.used.length; u++) {
+      const cell = fr.used[u];
+      const bx = cell % fr.nbx;
+      const by = (cell - bx) / fr.nbx;
+      const k00 = 2 * by * nx + 2 * bx;
+      const ks = [k00, k00 + 1, k00 + nx, k00 + nx + 1];
+      let I = 0;
+      for (const k of ks) I += sampleI(k);
+      I /= 4;
+      intensity[row] = I;
+      model[row] = scale * I + bg;
+      if (jac) {
+        const o = row * np;
+        for (let t = 0; t < nz; t++) {
+          let d = 0;
+          for (const k of ks) d += dI(t, k);
+          jac[o + t] = (scale * d) / 4;
+        }
+        // centre: model at P − c, so ∂/∂c = −∂/∂P
+        let dx = 0, dy = 0;
+        for (const k of ks) {
+          dx += dI(nz, k);
+          dy += dI(nz + 1, k);
+        }
+        jac[o + base] = (-scale * dx) / 4;
+        jac[o + base + 1] = (-scale * dy) / 4;
+        jac[o + base + 2] = I;
+        jac[o + base + 3] = 1;
+      }
+      row++;
+    }
+  }
+  if (jac && (layout.freeDistance || layout.freeDiscRadius)) {
+    // Distance and disc-radius offsets: central differences of the model (they enter every frame).
+    let col = nz + 4 * layout.nFrames;
+    for (const which of ['dL', 'da'] as const) {
+      if (which === 'dL' && !layout.freeDistance) continue;
+      if (which === 'da' && !layout.freeDiscRadius) continue;
+      const h = which === 'dL' ? 1e-5 * frames[0].input.setup.camera.distanceM : 1e-5 * frames[0].input.setup.disc.radiusM;
+      const pp = Float64Array.from(p);
+      const pm = Float64Array.from(p);
+      pp[col] += h;
+      pm[col] -= h;
+      const mp = evaluateModel(frames, layout, pp, false, rimSamples).model;
+      const mm = evaluateModel(frames, layout, pm, false, rimSamples).model;
+      for (let i = 0; i < total; i++) jac[i * np + col] = (mp[i] - mm[i]) / (2 * h);
+      col++;
+    }
+  }
+  return { model, intensity, jacobian: jac };
+}
+
+/** Rim samples for each frame, chosen once for the frame's extent (plus a margin for centre moves). */
+export function rimSamplesFor(frames: BinnedFrame[], terms: ZernikeTerm[]): number[] {
+  return frames.map((f) => {
+    const pad = 0.1 * (f.xs[f.xs.length - 1] - f.xs[0]);
+    const xs = Float64Array.from([f.xs[0] - pad, f.xs[f.xs.length - 1] + pad]);
+    const ys = Float64Array.from([f.ys[0] + pad, f.ys[f.ys.length - 1] - pad]);
+    return chooseRimSamples(f.input.setup, terms, xs, ys);
+  });
+}
+
+/** Noise variance of each used super-pixel's mean, from the model intensity (shot + read noise). */
+export function superPixelVariance(frames: BinnedFrame[], layout: ModelLayout, p: Float64Array, intensity: Float64Array): Float64Array {
+  const nz = layout.terms.length;
+  const out = new Float64Array(intensity.length);
+  let row = 0;
+  for (let f = 0; f < frames.length; f++) {
+    const fr = frames[f];
+    const inp = fr.input;
+    const scale = p[nz + 4 * f + 2];
+    const read2 = inp.readNoiseCounts ** 2;
+    for (let u = 0; u < fr.used.length; u++) {
+      const signal = Math.max(scale * intensity[row], 0);
+      const perPixel = (inp.gainCountsPerElectron * signal + read2) / inp.frameCount + (inp.darkCount > 0 ? read2 / inp.darkCount : 0);
+      out[row] = perPixel / fr.pixelsPer;
+      row++;
+    }
+  }
+  return out;
+}
