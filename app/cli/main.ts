@@ -18,6 +18,13 @@ const COMMANDS: Record<string, { load: () => Promise<CommandModule>; summary: st
     },
     summary: 'simulate a camera frame of the shadow from a scene file',
   },
+  fit: {
+    load: async () => {
+      const m = await import('./commands/fit.ts');
+      return { run: m.fitCommand, usage: m.FIT_USAGE };
+    },
+    summary: 'fit camera frames of the shadow for the beam\'s aberrations',
+  },
   figures: {
     load: async () => {
       const m = await import('./commands/figures.ts');
@@ -25,12 +32,26 @@ const COMMANDS: Record<string, { load: () => Promise<CommandModule>; summary: st
     },
     summary: 'print the derived figures of a bench setup',
   },
+  beam: {
+    load: async () => {
+      const m = await import('./commands/beam.ts');
+      return { run: m.beamCommand, usage: m.BEAM_USAGE };
+    },
+    summary: 'ISO 11146 beam widths from a frame of the beam itself',
+  },
   demo: {
     load: async () => {
       const m = await import('./commands/demo.ts');
       return { run: m.demoCommand, usage: m.DEMO_USAGE };
     },
     summary: 'run the bundled synthetic demonstration',
+  },
+  log: {
+    load: async () => {
+      const m = await import('./commands/log.ts');
+      return { run: m.logCommand, usage: m.LOG_USAGE };
+    },
+    summary: 'the beam-health logbook: log, compare, trend, export, report',
   },
 };
 

@@ -44,6 +44,12 @@ export interface FitOptions {
   maxIterations?: number;
   /** Progress 0..1 with a stage name; return false to cancel. */
   onProgress?: (fraction: number, stage: string) => boolean | void;
+  /**
+   * Estimate the camera noise (gain and read noise) from the residuals of a first fit, for frames whose
+   * noise is not known (no dark frames, no gain given). χ²/dof is then ≈ 1 by construction and only the
+   * residual structure can flag a wrong minimum.
+   */
+  estimateNoise?: boolean;
 }
 
 export class FitInputError extends Error {
@@ -159,25 +165,34 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   const np = parameterCount(layout);
   const nz = terms.length;
 
-  // --- binning and data
+  // --- binning and data: a coarse stage (2× binning) finds the basin, the fine stage refines it
   const binning = options.binning === undefined || options.binning === 'auto' ? autoBinning(inputs) : Math.max(1, Math.floor(options.binning));
-  const frames = inputs.map((f) => binFrame(f, binning));
-  for (let f = 0; f < frames.length; f++) {
-    if (frames[f].used.length < 4 * np) throw new FitInputError(`frame ${f + 1}: only ${frames[f].used.length} usable super-pixels in the region of interest`);
-  }
-  const data = new Float64Array(frames.reduce((s, f) => s + f.used.length, 0));
-  {
+  const rimFor = (fr: BinnedFrame[]) => rimSamplesFor(fr, terms.map((j) => ({ j, waves: 0.3 })));
+  const prior =
+    layout.freeDiscRadius
+      ? { index: nz + 4 * inputs.length + (layout.freeDistance ? 1 : 0), sigma: options.discRadiusToleranceM ?? 0.01 * inputs[0].setup.disc.radiusM }
+      : null;
+  const makeProblem = (b: number): Problem => {
+    const frames = inputs.map((f) => binFrame(f, b));
+    for (let f = 0; f < frames.length; f++) {
+      if (frames[f].used.length < 4 * np) throw new FitInputError(`frame ${f + 1}: only ${frames[f].used.length} usable super-pixels in the region of interest`);
+    }
+    const data = new Float64Array(frames.reduce((s, f) => s + f.used.length, 0));
     let o = 0;
     for (const f of frames) {
       data.set(f.data, o);
       o += f.data.length;
     }
-  }
-  const rim = rimSamplesFor(frames, terms.map((j) => ({ j, waves: 0.3 })));
-  const prior =
-    layout.freeDiscRadius
-      ? { index: nz + 4 * inputs.length + (layout.freeDistance ? 1 : 0), sigma: options.discRadiusToleranceM ?? 0.01 * inputs[0].setup.disc.radiusM }
-      : null;
+    return { frames, layout, data, rim: rimFor(frames), sigma: new Float64Array(data.length), prior };
+  };
+  const fine = makeProblem(binning);
+  // The coarse stage keeps ≲ 2500 super-pixels; the defocus search runs on ≲ 900 (it reads mostly the
+  // shadow size and the ring envelope, which survive heavy binning).
+  const coarsen = (target: number) => Math.max(binning, Math.ceil(binning * Math.sqrt(fine.data.length / target)));
+  const coarseBinning = fine.data.length > 2500 ? Math.min(coarsen(2500), 2 * binning + 2) : binning;
+  const coarse = coarseBinning === binning ? fine : makeProblem(coarseBinning);
+  const searchBinning = Math.max(coarseBinning, coarsen(900));
+  const search = searchBinning === coarseBinning ? coarse : makeProblem(searchBinning);
 
   // --- start: centres, coarse search on defocus with scale and background solved linearly
   step(0, 'coarse search');
@@ -188,24 +203,24 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     p[nz + 4 * f + 1] = c[1];
     p[nz + 4 * f + 2] = 1;
   }
-  const dataWeights = new Float64Array(data.length);
+  const dataWeights = new Float64Array(search.data.length);
   {
     let row = 0;
-    for (const f of frames) {
+    for (const f of search.frames) {
       const r2 = f.input.readNoiseCounts ** 2;
-      for (let u = 0; u < f.used.length; u++, row++) dataWeights[row] = f.pixelsPer / (Math.max(data[row], 1) * f.input.gainCountsPerElectron + r2);
+      for (let u = 0; u < f.used.length; u++, row++) dataWeights[row] = f.pixelsPer / (Math.max(search.data[row], 1) * f.input.gainCountsPerElectron + r2);
     }
   }
   const setScaleBackground = (q: Float64Array): number => {
-    const ev = evaluateModel(frames, layout, q, false, rim);
+    const ev = evaluateModel(search.frames, layout, q, false, search.rim);
     let row = 0;
     let c2 = 0;
-    for (let f = 0; f < frames.length; f++) {
-      const n = frames[f].used.length;
-      const [s, b] = solveScaleBackground(data, ev.intensity, dataWeights, row, row + n);
+    for (let f = 0; f < search.frames.length; f++) {
+      const n = search.frames[f].used.length;
+      const [s, b] = solveScaleBackground(search.data, ev.intensity, dataWeights, row, row + n);
       q[nz + 4 * f + 2] = s;
       q[nz + 4 * f + 3] = b;
-      for (let i = row; i < row + n; i++) c2 += dataWeights[i] * (data[i] - s * ev.intensity[i] - b) ** 2;
+      for (let i = row; i < row + n; i++) c2 += dataWeights[i] * (search.data[i] - s * ev.intensity[i] - b) ** 2;
       row += n;
     }
     return c2;
@@ -224,22 +239,20 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
         bestC2 = c2;
         best = q;
       }
-      step((0.25 * (gi + 1)) / grid.length, 'coarse search');
+      step((0.2 * (gi + 1)) / grid.length, 'coarse search');
     });
   }
 
-  // --- noise weights from the model at the start, then LM; weights refreshed once at the solution
-  const problem: Problem = { frames, layout, data, rim, sigma: new Float64Array(data.length), prior };
-  const refreshSigma = (q: Float64Array) => {
-    const ev = evaluateModel(frames, layout, q, false, rim);
-    const v = superPixelVariance(frames, layout, q, ev.intensity);
-    for (let i = 0; i < v.length; i++) problem.sigma[i] = Math.sqrt(Math.max(v[i], 1e-12));
+  // --- noise weights from the model, then LM; weights refreshed at the solution
+  const refreshSigma = (pr: Problem, q: Float64Array) => {
+    const ev = evaluateModel(pr.frames, layout, q, false, pr.rim);
+    const v = superPixelVariance(pr.frames, layout, q, ev.intensity);
+    for (let i = 0; i < v.length; i++) pr.sigma[i] = Math.sqrt(Math.max(v[i], 1e-12));
   };
-  refreshSigma(best);
   const maxIt = options.maxIterations ?? 60;
   let iterationsTotal = 0;
-  const runLM = (start: Float64Array, from: number, span: number): LMResult => {
-    const res = levenbergMarquardt(makeWeighted(problem), start, {
+  const runLM = (pr: Problem, start: Float64Array, from: number, span: number): LMResult => {
+    const res = levenbergMarquardt(makeWeighted(pr), start, {
       maxIterations: maxIt,
       onIteration: (it) => {
         if (progress && progress(Math.min(from + (span * it) / 12, from + span), 'fitting') === false) return false;
@@ -250,27 +263,44 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     if (res.termination === 'cancelled') throw cancelledError();
     return res;
   };
-  let sol = runLM(best, 0.25, 0.35);
-  refreshSigma(sol.params);
-  sol = runLM(sol.params, 0.6, 0.1);
+  refreshSigma(coarse, best);
+  let sol = runLM(coarse, best, 0.2, 0.3);
 
-  // --- the sign-flipped even-m alternative
+  // --- the sign-flipped even-m alternative, on the coarse stage
   const even = evenTermIndices(terms);
-  let alternativeChi2: number | null = null;
+  let alternativeGap: number | null = null;
   if (even.length > 0) {
     const alt = Float64Array.from(sol.params);
     for (const i of even) alt[i] = -alt[i];
-    const altStartC2 = chi2At(problem, alt);
+    const altStartC2 = chi2At(coarse, alt);
     // Only pursue it when it starts within reach of the current minimum.
     if (altStartC2 < sol.chi2 + 50 + 0.5 * sol.chi2) {
-      const altSol = runLM(alt, 0.7, 0.15);
-      alternativeChi2 = altSol.chi2;
-      if (altSol.chi2 < sol.chi2) {
-        alternativeChi2 = sol.chi2;
-        sol = altSol;
-      }
-    } else alternativeChi2 = altStartC2;
+      const altSol = runLM(coarse, alt, 0.5, 0.2);
+      alternativeGap = Math.abs(altSol.chi2 - sol.chi2);
+      if (altSol.chi2 < sol.chi2) sol = altSol;
+    } else alternativeGap = altStartC2 - sol.chi2;
   }
+
+  // --- fine stage
+  const problem = fine;
+  const frames = fine.frames;
+  const data = fine.data;
+  const rim = fine.rim;
+  refreshSigma(fine, sol.params);
+  sol = runLM(fine, sol.params, 0.7, 0.1);
+  let noiseNote: string | null = null;
+  if (options.estimateNoise) {
+    const est = estimateNoiseModel(fine, sol.params);
+    if (est) {
+      for (const f of inputs) {
+        f.gainCountsPerElectron = est.gain;
+        f.readNoiseCounts = est.readNoise;
+      }
+      noiseNote = `the camera noise was estimated from the fit residuals (gain ${est.gain.toPrecision(3)} counts per electron, read noise ${est.readNoise.toPrecision(3)} counts): χ²/dof is ≈ 1 by construction; give --gain and --read-noise, or dark frames, for an independent check`;
+    }
+  }
+  refreshSigma(fine, sol.params);
+  sol = runLM(fine, sol.params, 0.8, 0.1);
   step(0.9, 'uncertainties');
 
   // --- statistics
@@ -342,11 +372,12 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
       `the noise model does not explain the residuals (χ²/dof = ${chi2PerDof.toFixed(2)}): the uncertainties were scaled up by √(χ²/dof) = ${Math.sqrt(chi2PerDof).toFixed(2)}`,
     );
   }
-  if (alternativeChi2 !== null && Math.abs(alternativeChi2 - sol.chi2) < 9) {
+  if (alternativeGap !== null && alternativeGap < 9) {
     warnings.push(
-      `the sign of the even terms (defocus, astigmatism) is poorly determined: flipping it changes χ² by only ${Math.abs(alternativeChi2 - sol.chi2).toFixed(1)}; a frame that holds the shadow edge settles it`,
+      `the sign of the even terms (defocus, astigmatism) is poorly determined: flipping it changes χ² by only ${alternativeGap.toFixed(1)}; a frame that holds the shadow edge settles it`,
     );
   }
+  if (noiseNote) warnings.push(noiseNote);
   if (!options.discCalibrated) {
     warnings.push('the disc shape is not calibrated: astigmatism may include disc ellipticity (measure with the disc turned by 90° to separate them)');
   }
@@ -397,6 +428,8 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     settings: {
       terms,
       binning,
+      coarseBinning,
+      searchBinning,
       freeDistance: layout.freeDistance,
       freeDiscRadius: layout.freeDiscRadius,
       rimSamples: rim,
@@ -405,6 +438,47 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     warnings,
     trusted,
   };
+}
+
+/**
+ * Fit the noise model var = (gain·S + read²)/(pixels per super-pixel · frames) to the squared residuals
+ * by weighted linear regression (S = model signal above background), iterated twice for the weights.
+ */
+function estimateNoiseModel(pr: Problem, p: Float64Array): { gain: number; readNoise: number } | null {
+  const ev = evaluateModel(pr.frames, pr.layout, p, false, pr.rim);
+  const nz = pr.layout.terms.length;
+  const xs: number[] = [];
+  const ys: number[] = [];
+  let row = 0;
+  for (let f = 0; f < pr.frames.length; f++) {
+    const fr = pr.frames[f];
+    const scale = p[nz + 4 * f + 2];
+    const k = fr.pixelsPer * fr.input.frameCount;
+    for (let u = 0; u < fr.used.length; u++, row++) {
+      xs.push(Math.max(scale * ev.intensity[row], 0));
+      ys.push((pr.data[row] - ev.model[row]) ** 2 * k);
+    }
+  }
+  let g = 1, r2 = 9;
+  for (let it = 0; it < 3; it++) {
+    let sw = 0, sx = 0, sxx = 0, sy = 0, sxy = 0;
+    for (let i = 0; i < xs.length; i++) {
+      const v = g * xs[i] + r2;
+      const w = 1 / (v * v);
+      sw += w;
+      sx += w * xs[i];
+      sxx += w * xs[i] * xs[i];
+      sy += w * ys[i];
+      sxy += w * xs[i] * ys[i];
+    }
+    const det = sw * sxx - sx * sx;
+    if (!(det > 0)) return null;
+    const gNew = (sw * sxy - sx * sy) / det;
+    const rNew = (sxx * sy - sx * sxy) / det;
+    g = Math.max(gNew, 1e-3);
+    r2 = Math.max(rNew, 0.25);
+  }
+  return Number.isFinite(g) && Number.isFinite(r2) ? { gain: g, readNoise: Math.sqrt(r2) } : null;
 }
 
 /** χ²-like statistic of residual means over rings × 8 sectors; excess in standard deviations above its expectation. */

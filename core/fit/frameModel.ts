@@ -45,7 +45,20 @@ export interface BinnedFrame {
   ys: Float64Array;
   /** Pixels per super-pixel that are unmasked (all for used ones). */
   pixelsPer: number;
+  /**
+   * How the model integrates over a super-pixel: 'gl2' = mean of 2×2 Gauss–Legendre samples (xs, ys hold two
+   * samples per super-pixel); 'stencil' (1×1 super-pixels) = pixel-centre samples on a grid with a 2-pixel
+   * border (xs, ys hold W+4 and H+4 centres) and the separable 5-tap pixel-average filter PIXEL_FILTER.
+   */
+  mode: 'gl2' | 'stencil';
 }
+
+/**
+ * Pixel-area average from pixel-centre samples, per axis: (1 + p²/24·D² + p⁴/1920·D⁴) with D² and D⁴ the
+ * fourth- and second-order central differences (Taylor expansion of the box average; Abramowitz & Stegun
+ * 25.3.24 for the 5-point second difference). Weights for offsets −2…2; they sum to 1.
+ */
+export const PIXEL_FILTER = [-1 / 288 + 1 / 1920, 16 / 288 - 4 / 1920, 1 - 30 / 288 + 6 / 1920, 16 / 288 - 4 / 1920, -1 / 288 + 1 / 1920];
 
 const GL2 = 0.5 / Math.sqrt(3);
 
@@ -81,6 +94,13 @@ export function binFrame(input: FitFrameInput, binning: number): BinnedFrame {
       data.push(s / (b * b));
     }
   }
+  if (b === 1) {
+    const xs = new Float64Array(input.widthPx + 4);
+    const ys = new Float64Array(input.heightPx + 4);
+    for (let c = -2; c < input.widthPx + 2; c++) xs[c + 2] = (c - (input.widthPx - 1) / 2) * p;
+    for (let r = -2; r < input.heightPx + 2; r++) ys[r + 2] = -(r - (input.heightPx - 1) / 2) * p;
+    return { input, binning: 1, nbx, nby, used: Int32Array.from(used), data: Float64Array.from(data), xs, ys, pixelsPer: 1, mode: 'stencil' };
+  }
   // Super-pixel (bx, by) covers columns bx·b … bx·b+b−1: its centre in camera metres relative to the frame centre.
   const xs = new Float64Array(2 * nbx);
   const ys = new Float64Array(2 * nby);
@@ -94,7 +114,7 @@ export function binFrame(input: FitFrameInput, binning: number): BinnedFrame {
     ys[2 * by] = yc + GL2 * b * p;
     ys[2 * by + 1] = yc - GL2 * b * p;
   }
-  return { input, binning: b, nbx, nby, used: Int32Array.from(used), data: Float64Array.from(data), xs, ys, pixelsPer: b * b };
+  return { input, binning: b, nbx, nby, used: Int32Array.from(used), data: Float64Array.from(data), xs, ys, pixelsPer: b * b, mode: 'gl2' };
 }
 
 export interface ModelLayout {
@@ -164,34 +184,32 @@ export function evaluateModel(frames: BinnedFrame[], layout: ModelLayout, p: Flo
       centerDerivatives: withJacobian,
     });
     const nx = xs.length;
-    const sampleI = (k: number) => field.re[k] * field.re[k] + field.im[k] * field.im[k];
-    const dI = (param: number, k: number) => 2 * (field.re[k] * field.dRe[param][k] + field.im[k] * field.dIm[param][k]);
+    // Sample intensities and their derivatives: I = |U|², dI = 2·Re(conj(U)·dU).
+    const ns = field.re.length;
+    const Is = new Float64Array(ns);
+    for (let k = 0; k < ns; k++) Is[k] = field.re[k] * field.re[k] + field.im[k] * field.im[k];
+    const dIs: Float64Array[] = [];
+    if (jac) {
+      for (let q = 0; q < nz + 2; q++) {
+        const d = new Float64Array(ns);
+        const dr = field.dRe[q], di = field.dIm[q];
+        for (let k = 0; k < ns; k++) d[k] = 2 * (field.re[k] * dr[k] + field.im[k] * di[k]);
+        dIs.push(d);
+      }
+    }
+    const reduce = fr.mode === 'stencil' ? stencilReducer(fr) : gl2Reducer(fr, nx);
+    const Iu = reduce(Is);
+    const dIu = dIs.map(reduce);
     for (let u = 0; u < fr.used.length; u++) {
-      const cell = fr.used[u];
-      const bx = cell % fr.nbx;
-      const by = (cell - bx) / fr.nbx;
-      const k00 = 2 * by * nx + 2 * bx;
-      const ks = [k00, k00 + 1, k00 + nx, k00 + nx + 1];
-      let I = 0;
-      for (const k of ks) I += sampleI(k);
-      I /= 4;
+      const I = Iu[u];
       intensity[row] = I;
       model[row] = scale * I + bg;
       if (jac) {
         const o = row * np;
-        for (let t = 0; t < nz; t++) {
-          let d = 0;
-          for (const k of ks) d += dI(t, k);
-          jac[o + t] = (scale * d) / 4;
-        }
+        for (let t = 0; t < nz; t++) jac[o + t] = scale * dIu[t][u];
         // centre: model at P − c, so ∂/∂c = −∂/∂P
-        let dx = 0, dy = 0;
-        for (const k of ks) {
-          dx += dI(nz, k);
-          dy += dI(nz + 1, k);
-        }
-        jac[o + base] = (-scale * dx) / 4;
-        jac[o + base + 1] = (-scale * dy) / 4;
+        jac[o + base] = -scale * dIu[nz][u];
+        jac[o + base + 1] = -scale * dIu[nz + 1][u];
         jac[o + base + 2] = I;
         jac[o + base + 3] = 1;
       }
@@ -218,13 +236,56 @@ export function evaluateModel(frames: BinnedFrame[], layout: ModelLayout, p: Flo
   return { model, intensity, jacobian: jac };
 }
 
+/** Mean of the 2×2 Gauss–Legendre samples of each used super-pixel. */
+function gl2Reducer(fr: BinnedFrame, nx: number): (v: Float64Array) => Float64Array {
+  return (v) => {
+    const out = new Float64Array(fr.used.length);
+    for (let u = 0; u < fr.used.length; u++) {
+      const cell = fr.used[u];
+      const bx = cell % fr.nbx;
+      const by = (cell - bx) / fr.nbx;
+      const k = 2 * by * nx + 2 * bx;
+      out[u] = 0.25 * (v[k] + v[k + 1] + v[k + nx] + v[k + nx + 1]);
+    }
+    return out;
+  };
+}
+
+/** The separable 5-tap pixel-average filter on the bordered pixel-centre grid, read at the used pixels. */
+function stencilReducer(fr: BinnedFrame): (v: Float64Array) => Float64Array {
+  const gx = fr.xs.length;
+  const gy = fr.ys.length;
+  const w = PIXEL_FILTER;
+  return (v) => {
+    // filter along x for every grid row, at interior columns
+    const W = gx - 4;
+    const tmp = new Float64Array(gy * W);
+    for (let r = 0; r < gy; r++) {
+      const o = r * gx;
+      for (let c = 0; c < W; c++) {
+        const k = o + c;
+        tmp[r * W + c] = w[0] * v[k] + w[1] * v[k + 1] + w[2] * v[k + 2] + w[3] * v[k + 3] + w[4] * v[k + 4];
+      }
+    }
+    const out = new Float64Array(fr.used.length);
+    for (let u = 0; u < fr.used.length; u++) {
+      const cell = fr.used[u];
+      const c = cell % fr.nbx;
+      const r = (cell - c) / fr.nbx;
+      out[u] = w[0] * tmp[r * W + c] + w[1] * tmp[(r + 1) * W + c] + w[2] * tmp[(r + 2) * W + c] + w[3] * tmp[(r + 3) * W + c] + w[4] * tmp[(r + 4) * W + c];
+    }
+    return out;
+  };
+}
+
 /** Rim samples for each frame, chosen once for the frame's extent (plus a margin for centre moves). */
 export function rimSamplesFor(frames: BinnedFrame[], terms: ZernikeTerm[]): number[] {
   return frames.map((f) => {
-    const pad = 0.1 * (f.xs[f.xs.length - 1] - f.xs[0]);
-    const xs = Float64Array.from([f.xs[0] - pad, f.xs[f.xs.length - 1] + pad]);
-    const ys = Float64Array.from([f.ys[0] + pad, f.ys[f.ys.length - 1] - pad]);
-    return chooseRimSamples(f.input.setup, terms, xs, ys);
+    // Only the region's circle matters (pixels outside it are computed but not used): its radius around
+    // the pattern, with room for the stencil border, binning and centre moves during the fit.
+    const p = f.input.setup.camera.pixelPitchM;
+    const radiusM = (f.input.regionRadiusPx + 2 * f.binning + 3) * p * 1.05 + 20e-6;
+    return chooseRimSamples(f.input.setup, terms, f.xs, f.ys, radiusM);
   });
 }
 

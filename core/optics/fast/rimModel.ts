@@ -20,7 +20,7 @@
 import type { BenchSetup, ZernikeTerm } from '../../setup/types.ts';
 import { edgePoint, edgePointComplex, edgeRadius } from '../discEdge.ts';
 import { effectiveDistanceM } from '../geometry.ts';
-import { emptyDerivs, evalPolynomial, wavefrontPolynomial, zernikePolynomialM, type Polynomial2D } from '../wavefront.ts';
+import { emptyDerivs, evalPolynomial, evalPolynomialComplex, wavefrontPolynomial, zernikePolynomialM, type Polynomial2D } from '../wavefront.ts';
 import { newSaddleResult, solveSaddle, type SaddleContext, type SaddleResult } from './saddle.ts';
 
 export interface FastModelOptions {
@@ -48,13 +48,21 @@ export interface FastFieldResult {
 }
 
 /** Rim samples needed for the phase bandwidth along the rim over the given camera extent. */
-export function chooseRimSamples(setup: BenchSetup, aberrations: readonly ZernikeTerm[], xsM: Float64Array, ysM: Float64Array): number {
+export function chooseRimSamples(
+  setup: BenchSetup,
+  aberrations: readonly ZernikeTerm[],
+  xsM: Float64Array,
+  ysM: Float64Array,
+  /** When given, the largest camera radius |P| that matters (e.g. a circular region), instead of the grid's corners. */
+  maxCameraRadiusM?: number,
+): number {
   const L = setup.camera.distanceM;
   const lp = effectiveDistanceM(L, setup.beam.curvatureRadiusM);
   const k = (2 * Math.PI) / setup.wavelengthM;
   const poly = wavefrontPolynomial(setup.wavelengthM, setup.zernikeRadiusM, aberrations);
   let fMax = 0;
-  for (const x of [xsM[0], xsM[xsM.length - 1]]) for (const y of [ysM[0], ysM[ysM.length - 1]]) fMax = Math.max(fMax, Math.hypot(x, y));
+  if (maxCameraRadiusM !== undefined) fMax = maxCameraRadiusM;
+  else for (const x of [xsM[0], xsM[xsM.length - 1]]) for (const y of [ysM[0], ysM[ysM.length - 1]]) fMax = Math.max(fMax, Math.hypot(x, y));
   fMax *= lp / L;
   // max over the rim of |dΦ/dφ| = k·|(∇W + (Q−F)/L')·Q'| ≤ k·(|∇W·Q'| + |Q·Q'|/L' + |F||Q'|/L')
   const d = emptyDerivs();
@@ -240,6 +248,8 @@ export function fastField(
     plus: wavefrontPolynomial(lambda, setup.zernikeRadiusM, [...aberrations, { j: jz, waves: 1e-5 }]),
     minus: wavefrontPolynomial(lambda, setup.zernikeRadiusM, [...aberrations, { j: jz, waves: -1e-5 }]),
   }));
+  const termUnitPolys = terms.map((jz) => zernikePolynomialM([{ j: jz, value: 1 }], setup.zernikeRadiusM, lambda));
+  const fbd = new Float64Array(2 * np);
   const ctx: SaddleContext = { k, lpM: lp, gamma: 1 / (k * setup.beam.radiusM ** 2), cx: setup.beam.centerM[0], cy: setup.beam.centerM[1], poly };
   const sad = newSaddleResult();
   const invalid = new Uint8Array(nx * ny);
@@ -277,9 +287,17 @@ export function fastField(
           haveStart = true;
           totR += e0[0];
           totI += e0[1];
-          // Derivatives of the free-beam and pole terms by central differences of this part alone
-          // (the rim sum is differentiated analytically). dU = −i·d(tot)/(λL).
-          for (let p = 0; p < np; p++) {
+          // Derivatives of the free-beam and pole terms (the rim sum is differentiated analytically).
+          // Without a pole near the rim: analytic (freeBeamDerivatives); with one: central differences of
+          // this part alone. dU = −i·d(tot)/(λL).
+          if (np > 0 && lastNearPoles === 0) {
+            freeBeamDerivatives(sad, lastWeight, termUnitPolys, k, kap, fx, fy, wantCenter, fbd);
+            for (let p = 0; p < np; p++) {
+              const sc = p >= nTerms ? lp / L : 1;
+              dRe[p][pix] += pre * fbd[2 * p + 1] * sc;
+              dIm[p][pix] -= pre * fbd[2 * p] * sc;
+            }
+          } else for (let p = 0; p < np; p++) {
             let plus: [number, number] | null, minus: [number, number] | null, h: number, scale = 1;
             if (p < nTerms) {
               h = 1e-5;
@@ -312,10 +330,10 @@ export function fastField(
 interface DerivativeTables {
   nTerms: number;
   center: boolean;
-  /** per term: XT[t][(ix·n + j)·6] = δn_x (2), δs_x (2), 2·δM_xy·d_x (2); YT[t][(iy·n + j)·4] = δn_y (2), δs_y (2); kz[t][j] */
-  XT: Float64Array[];
-  YT: Float64Array[];
-  KZ: Float64Array[];
+  /** terms interleaved: XA[((ix·n + j)·nT + t)·6] = δn_x (2), δs_x (2), 2·δM_xy·d_x (2); YA[((iy·n + j)·nT + t)·4] = δn_y (2), δs_y (2); KA[j·nT + t] = k·Z_t */
+  XA: Float64Array;
+  YA: Float64Array;
+  KA: Float64Array;
   /** centre: XC[(ix·n + j)·3] = −2κ·M_xx·d_x (2), phase rate x; YC[(iy·n + j)·3] = −2κ·M_yy·d_y (2), phase rate y;
    * JC[j·8] = −κ·m_x (2), −κ·m_y (2), −2κ·M_xy (2) */
   XC: Float64Array;
@@ -419,6 +437,17 @@ function derivativeTables(
     YT.push(yt);
     KZ.push(kz);
   }
+  // Interleave the terms so the kernel walks memory in order: XA[((ix·n + j)·nT + t)·6 + ·], YA[((iy·n + j)·nT + t)·4 + ·], KA[j·nT + t].
+  const nT = terms.length;
+  const XA = new Float64Array(nx * n * nT * 6);
+  const YA = new Float64Array(ny * n * nT * 4);
+  const KA = new Float64Array(n * nT);
+  for (let tt = 0; tt < nT; tt++) {
+    const xt = XT[tt], yt = YT[tt], kz = KZ[tt];
+    for (let o = 0; o < nx * n; o++) for (let c = 0; c < 6; c++) XA[(o * nT + tt) * 6 + c] = xt[o * 6 + c];
+    for (let o = 0; o < ny * n; o++) for (let c = 0; c < 4; c++) YA[(o * nT + tt) * 4 + c] = yt[o * 4 + c];
+    for (let j = 0; j < n; j++) KA[j * nT + tt] = kz[j];
+  }
   const XC = new Float64Array(center ? nx * n * 3 : 0);
   const YC = new Float64Array(center ? ny * n * 3 : 0);
   const JC = new Float64Array(center ? n * 6 : 0);
@@ -450,7 +479,7 @@ function derivativeTables(
       }
     }
   }
-  return { nTerms: terms.length, center, XT, YT, KZ, XC, YC, JC };
+  return { nTerms: terms.length, center, XA, YA, KA, XC, YC, JC };
 }
 
 /**
@@ -496,14 +525,15 @@ function rimSumsWithDerivatives(
         const qr = nr * isr - ni * isi, qi = nr * isi + ni * isr; // q = n/s
         sr += er * qi + ei * qr;
         si -= er * qr - ei * qi;
-        for (let tt = 0; tt < nT; tt++) {
-          const xt = D.XT[tt], yt = D.YT[tt];
-          const xo = (ix * n + j) * 6, yo = (iy * n + j) * 4;
-          const dnr = xt[xo] + yt[yo], dni = xt[xo + 1] + yt[yo + 1];
-          const dsr = xt[xo + 2] + yt[yo + 2] + xt[xo + 4] * dyr - xt[xo + 5] * dyi;
-          const dsi = xt[xo + 3] + yt[yo + 3] + xt[xo + 4] * dyi + xt[xo + 5] * dyr;
+        const XA = D.XA, YA = D.YA, KA = D.KA;
+        let xo = (ix * n + j) * nT * 6;
+        let yo = (iy * n + j) * nT * 4;
+        for (let tt = 0; tt < nT; tt++, xo += 6, yo += 4) {
+          const dnr = XA[xo] + YA[yo], dni = XA[xo + 1] + YA[yo + 1];
+          const dsr = XA[xo + 2] + YA[yo + 2] + XA[xo + 4] * dyr - XA[xo + 5] * dyi;
+          const dsi = XA[xo + 3] + YA[yo + 3] + XA[xo + 4] * dyi + XA[xo + 5] * dyr;
           const ur = dnr - (qr * dsr - qi * dsi), ui = dni - (qr * dsi + qi * dsr);
-          const kz = D.KZ[tt][j];
+          const kz = KA[j * nT + tt];
           const vr = ur * isr - ui * isi - kz * qi;
           const vi = ur * isi + ui * isr + kz * qr;
           acc[2 * tt] += er * vi + ei * vr;
@@ -586,16 +616,76 @@ function rimSums(XT: Float64Array, YT: Float64Array, n: number, nx: number, ny: 
 }
 
 /** Free-beam and pole terms for one camera point: U_all·(n_far_out/2 + n_near/4) − Σ_near R·π·cot(Np/2). */
+let lastWeight = 0;
+let lastNearPoles = 0;
+
 function edgePart(setup: BenchSetup, ctx: SaddleContext, fx: number, fy: number, n: number, sad: SaddleResult, start?: Float64Array | null): [number, number] | null {
   if (!solveSaddle(ctx, fx, fy, sad, start).ok) {
     if (!start || !solveSaddle(ctx, fx, fy, sad).ok) return null;
   }
   let cr = 0, ci = 0;
+  lastNearPoles = 0;
   const weight = singularWeight(setup, sad, n, (rr, ri) => {
     cr += rr;
     ci += ri;
+    lastNearPoles++;
   });
+  lastWeight = weight;
   return [weight * sad.allRe - cr, weight * sad.allIm - ci];
+}
+
+const cplxScratch = new Float64Array(12);
+
+/**
+ * Analytic derivatives of weight·U_all when no pole is near the rim (the weight is then constant):
+ * with U_all = e^{iΦ(Q*)}·2π/√det(−iH(Q*)) and ∇Φ(Q*) = 0,
+ *   ∂U/∂c = U·[i·k·Z(Q*) − ½·tr(H⁻¹·k∇∇Z(Q*))],  ∂U/∂F = −i·κ·(Q* − F)·U,
+ * neglecting the third-derivative terms through the shift of Q* with c (small for smooth low-order aberrations).
+ * Returns (re, im) of ∂(weight·U_all) into out[2p], out[2p+1].
+ */
+function freeBeamDerivatives(
+  sad: SaddleResult,
+  weight: number,
+  termPolys: Polynomial2D[],
+  k: number,
+  kap: number,
+  fx: number,
+  fy: number,
+  center: boolean,
+  out: Float64Array,
+): void {
+  const ur = weight * sad.allRe, ui = weight * sad.allIm;
+  const h = sad.h;
+  // H⁻¹ (complex symmetric 2×2)
+  const detr = h[0] * h[4] - h[1] * h[5] - (h[2] * h[2] - h[3] * h[3]);
+  const deti = h[0] * h[5] + h[1] * h[4] - 2 * h[2] * h[3];
+  const dd = detr * detr + deti * deti;
+  const div = (ar: number, ai: number): [number, number] => [(ar * detr + ai * deti) / dd, (ai * detr - ar * deti) / dd];
+  const [m11r, m11i] = div(h[4], h[5]);
+  const [m22r, m22i] = div(h[0], h[1]);
+  const [m12r, m12i] = div(-h[2], -h[3]);
+  let o = 0;
+  for (const tp of termPolys) {
+    const d = evalPolynomialComplex(tp, sad.q[0], sad.q[1], sad.q[2], sad.q[3], cplxScratch);
+    // i·k·Z
+    let gr = -k * d[1], gi = k * d[0];
+    // −½ tr(H⁻¹·k∇∇Z) = −½ k (M11 Zxx + 2 M12 Zxy + M22 Zyy)
+    const tr = m11r * d[6] - m11i * d[7] + 2 * (m12r * d[8] - m12i * d[9]) + m22r * d[10] - m22i * d[11];
+    const ti = m11r * d[7] + m11i * d[6] + 2 * (m12r * d[9] + m12i * d[8]) + m22r * d[11] + m22i * d[10];
+    gr -= 0.5 * k * tr;
+    gi -= 0.5 * k * ti;
+    out[o++] = gr * ur - gi * ui;
+    out[o++] = gr * ui + gi * ur;
+  }
+  if (center) {
+    for (let c = 0; c < 2; c++) {
+      const qr = sad.q[2 * c] - (c === 0 ? fx : fy), qi = sad.q[2 * c + 1];
+      // −iκ(qr + i·qi) = κ·qi − i·κ·qr
+      const gr = kap * qi, gi = -kap * qr;
+      out[o++] = gr * ur - gi * ui;
+      out[o++] = gr * ui + gi * ur;
+    }
+  }
 }
 
 const rootScratch = new Float64Array(4);

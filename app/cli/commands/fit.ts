@@ -1,0 +1,150 @@
+import { parseArgs } from 'node:util';
+import type { FitResult } from '../../../core/fit/result.ts';
+import { runFit } from '../../services/fitService.ts';
+import { progressPrinter, UsageError } from '../output.ts';
+
+export const FIT_USAGE = `Usage: shadowfront fit <frame files...> --setup <setup.json> [options]
+
+Fit camera frames of the disc's shadow for the beam's low-order aberrations. Several frames of the same
+setup are averaged; dark frames are averaged and subtracted. Formats: PNG, TIFF (8/16-bit), PGM/PNM, NumPy .npy.
+
+Options:
+  --setup <file>          bench setup (format "shadowfront-setup/1"), required
+  --dark <file>           a dark frame (repeat for several)
+  --terms <list>          ANSI Zernike indices to fit (default 3,4,5,7,8; optional 6, 9, 12)
+  --also <setup>=<files>  another frame set of the same beam with its own setup (another camera
+                          distance, or the disc turned); files separated by commas; repeatable
+  --free-distance         free the camera distance (degenerate with defocus unless frames at two
+                          distances are given)
+  --free-disc <tolerance> free the disc radius within a tolerance, e.g. "5 um"
+  --binning <n|auto>      super-pixel size in camera pixels (default auto: about 1/5 of the ring period)
+  --gain <counts/e>       camera gain for the shot-noise model (default 1)
+  --read-noise <counts>   read noise per frame (default: estimated from the frames)
+  --json                  print exactly one JSON object (format "shadowfront-result/1")
+  -h, --help              show this help
+
+Exit status: 0 fitted; 1 bad input; 2 bad usage; 3 the fit is not trustworthy (wrong minimum suspected).`;
+
+function parseTerms(text: string): number[] {
+  const parts = text.split(',').map((s) => s.trim()).filter(Boolean);
+  const out = parts.map((p) => Number(p));
+  if (out.length === 0 || out.some((j) => !Number.isInteger(j))) throw new UsageError(`--terms must be a comma-separated list of ANSI indices such as 3,4,5,7,8, not "${text}"`);
+  return out;
+}
+
+export function formatResult(r: FitResult): string {
+  const lines: string[] = [];
+  const rho = r.zernike.radius_m * 1e3;
+  lines.push(`terms fitted: ${r.zernike.terms.map((t) => `j=${t.j}`).join(', ')} — ${r.zernike.basis}, r = ${rho.toFixed(3)} mm`);
+  lines.push('');
+  lines.push('   j  term                        waves      ±1σ          nm      ±1σ');
+  for (const t of r.zernike.terms) {
+    lines.push(
+      `  ${String(t.j).padStart(2)}  ${t.name.padEnd(24)} ${t.waves.toFixed(4).padStart(9)} ${t.sigmaWaves.toFixed(4).padStart(8)}  ${t.nm.toFixed(1).padStart(10)} ${t.sigmaNm.toFixed(1).padStart(8)}`,
+    );
+  }
+  lines.push('');
+  const diffLimit = 1 / 14;
+  lines.push(
+    `RMS wavefront error (without piston and tilt, fitted terms)  ${r.rmsWaves.toFixed(4)} ± ${r.sigmaRmsWaves.toFixed(4)} waves` +
+      `  (${(r.rmsWaves * r.wavelength_m * 1e9).toFixed(1)} nm) — ${r.rmsWaves <= diffLimit ? 'within' : 'beyond'} λ/14 (Maréchal criterion)`,
+  );
+  lines.push(`peak-to-valley                                             ${r.pvWaves.toFixed(4)} waves`);
+  lines.push(`Strehl ratio (Maréchal approximation)                      ${r.strehl.toFixed(3)} ± ${r.sigmaStrehl.toFixed(3)}`);
+  if (r.residualCurvatureRadius_m !== null) {
+    lines.push(
+      `equivalent residual curvature radius                       ${r.residualCurvatureRadius_m.toFixed(2)} m (${r.residualCurvatureRadius_m > 0 ? 'diverging' : 'converging'} relative to the nominal)`,
+    );
+  }
+  r.centers_m.forEach((c, i) => {
+    lines.push(`pattern centre${r.centers_m.length > 1 ? ` (set ${i + 1})` : ''}                                  x ${(c[0] * 1e6).toFixed(1)} µm, y ${(c[1] * 1e6).toFixed(1)} µm from the frame centre`);
+  });
+  lines.push(`χ²/dof ${r.chi2PerDof.toFixed(3)} (${r.dof} dof), ${r.iterations} iterations, ${r.termination}, ${(r.elapsedMs / 1000).toFixed(2)} s`);
+  r.regions.forEach((g, i) =>
+    lines.push(`region${r.regions.length > 1 ? ` ${i + 1}` : ''}: circle of radius ${g.radiusPx.toFixed(1)} px around column ${g.centerPx[0].toFixed(1)}, row ${g.centerPx[1].toFixed(1)}, super-pixels of ${g.binning}×${g.binning}`),
+  );
+  if (r.warnings.length) {
+    lines.push('');
+    lines.push('warnings:');
+    for (const w of r.warnings) lines.push(`  - ${w}`);
+  }
+  return lines.join('\n');
+}
+
+export async function fitCommand(argv: string[]): Promise<number> {
+  const { values, positionals } = parseArgs({
+    args: argv,
+    allowPositionals: true,
+    options: {
+      setup: { type: 'string' },
+      dark: { type: 'string', multiple: true, default: [] },
+      terms: { type: 'string' },
+      also: { type: 'string', multiple: true, default: [] },
+      'free-distance': { type: 'boolean', default: false },
+      'free-disc': { type: 'string' },
+      binning: { type: 'string', default: 'auto' },
+      gain: { type: 'string' },
+      'read-noise': { type: 'string' },
+      json: { type: 'boolean', default: false },
+      help: { type: 'boolean', short: 'h', default: false },
+    },
+  });
+  if (values.help) {
+    process.stdout.write(`${FIT_USAGE}\n`);
+    return 0;
+  }
+  if (positionals.length === 0) throw new UsageError('missing the frame files');
+  if (!values.setup) throw new UsageError('missing --setup <setup.json>');
+  const terms = values.terms ? parseTerms(values.terms) : undefined;
+  const binning = values.binning === 'auto' ? 'auto' : Number(values.binning);
+  if (binning !== 'auto' && (!Number.isInteger(binning) || binning < 1 || binning > 32)) throw new UsageError(`--binning must be "auto" or a whole number 1..32, not "${values.binning}"`);
+  const num = (name: string, v: string | undefined) => {
+    if (v === undefined) return undefined;
+    const x = Number(v);
+    if (!(x > 0) || !Number.isFinite(x)) throw new UsageError(`--${name} must be a positive number, not "${v}"`);
+    return x;
+  };
+  let discTolM: number | undefined;
+  if (values['free-disc'] !== undefined) {
+    const { parseLength } = await import('../../../core/units/parseQuantity.ts');
+    try {
+      discTolM = parseLength(values['free-disc']);
+    } catch (e) {
+      throw new UsageError(`--free-disc: ${(e as Error).message}`);
+    }
+  }
+  const extraSets = (values.also as string[]).map((spec) => {
+    const eq = spec.indexOf('=');
+    if (eq <= 0) throw new UsageError(`--also must look like setup.json=frame1.png,frame2.png, not "${spec}"`);
+    return { setupPath: spec.slice(0, eq), framePaths: spec.slice(eq + 1).split(',').filter(Boolean) };
+  });
+  const bar = values.json ? () => {} : progressPrinter('fitting');
+  const result = await runFit({
+    framePaths: positionals,
+    darkPaths: values.dark as string[],
+    setupPath: values.setup,
+    terms,
+    extraSets,
+    options: {
+      binning,
+      freeDistance: values['free-distance'],
+      freeDiscRadius: discTolM !== undefined,
+      discRadiusToleranceM: discTolM,
+      gainCountsPerElectron: num('gain', values.gain),
+      readNoiseCounts: num('read-noise', values['read-noise']),
+    },
+    onProgress: (f) => bar(f),
+  });
+  if (values.json) {
+    process.stdout.write(`${JSON.stringify(result)}\n`);
+    return result.trusted ? 0 : 3;
+  }
+  if (!result.trusted) {
+    process.stdout.write('The fit did not reach a trustworthy minimum, so no coefficients are reported.\n');
+    for (const w of result.warnings) process.stdout.write(`  - ${w}\n`);
+    process.stdout.write('Check the setup (distance, disc size, wavelength, orientation) and the frame, or give --terms fewer terms.\n');
+    return 3;
+  }
+  process.stdout.write(`${formatResult(result)}\n`);
+  return 0;
+}
