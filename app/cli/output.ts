@@ -4,7 +4,7 @@
  * Errors that carry a message written for the user (file, field, value, what was expected).
  * Matched by name so that printing help does not load the libraries that define them.
  */
-const USER_ERRORS = new Set(['SetupFieldError', 'QuantityError', 'ImageDecodeError', 'FileProblem', 'RangeError', 'CancelledError']);
+const USER_ERRORS = new Set(['SetupFieldError', 'QuantityError', 'ImageDecodeError', 'FrameError', 'FileProblem', 'RangeError', 'CancelledError', 'LogbookDataError', 'LogbookError', 'LogbookLockedError', 'LogbookCorruptError']);
 
 /** A mistake in how the command was called: printed with the command's usage. */
 export class UsageError extends Error {
