@@ -433,6 +433,12 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
       freeDistance: layout.freeDistance,
       freeDiscRadius: layout.freeDiscRadius,
       rimSamples: rim,
+      ...(layout.freeDistance
+        ? { distanceOffsetM: sol.params[nz + 4 * inputs.length], sigmaDistanceOffsetM: sigmaOf(nz + 4 * inputs.length) }
+        : {}),
+      ...(layout.freeDiscRadius
+        ? { discRadiusOffsetM: sol.params[np - 1], sigmaDiscRadiusOffsetM: sigmaOf(np - 1) }
+        : {}),
       noiseModel: inputs.map((f) => ({ readNoiseCounts: f.readNoiseCounts, gainCountsPerElectron: f.gainCountsPerElectron, frames: f.frameCount, darks: f.darkCount })),
     },
     warnings,

@@ -74,3 +74,33 @@ for (const size of [256, 512]) {
     row(`${size}×${size}`, label, `reference ${tRef.toFixed(0)} ms`);
   }
 }
+
+// --- the fit (5 terms), frames made with the fast model plus noise (speed only; accuracy: fit-accuracy.ts)
+import { simulateFrame } from '../../core/optics/simulate.ts';
+import { prepareFrames } from '../../core/frames/prepare.ts';
+import { measureBeam } from '../../core/fit/measure.ts';
+import type { Scene } from '../../core/setup/types.ts';
+
+process.stdout.write('\nFit of one frame, 5 terms (median of 3 after a warm-up fit):\n');
+for (const size of [256, 512]) {
+  for (const [label, pitch] of [
+    ['spot and rings, 5.5 µm px', 5.5e-6],
+    ['whole shadow with edge', (1.4 * 2 * setup.disc.radiusM) / size],
+  ] as const) {
+    const scene: Scene = {
+      ...setup,
+      camera: { ...setup.camera, pixelPitchM: pitch },
+      aberrations,
+      frame: { widthPx: size, heightPx: size, centerM: [30e-6, -20e-6] },
+      noise: { peakCounts: 3000, readNoise: 3, offset: 20, seed: 5 },
+    };
+    const sim = simulateFrame(scene, { model: 'fast' });
+    const prepared = prepareFrames([{ data: Float64Array.from(sim.counts), widthPx: size, heightPx: size, bitDepth: 16, warnings: [], format: 'png' }], [], scene.camera, ['bench.png']);
+    let binning = 0;
+    const t = time(() => {
+      const r = measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3 });
+      binning = r.regions[0].binning;
+    }, 3);
+    row(`${size}×${size}`, label, `fit ${(t / 1000).toFixed(2)} s (super-pixels ${binning}×${binning})`);
+  }
+}

@@ -59,6 +59,13 @@ export function formatResult(r: FitResult): string {
   r.centers_m.forEach((c, i) => {
     lines.push(`pattern centre${r.centers_m.length > 1 ? ` (set ${i + 1})` : ''}                                  x ${(c[0] * 1e6).toFixed(1)} µm, y ${(c[1] * 1e6).toFixed(1)} µm from the frame centre`);
   });
+  const st = r.settings as { distanceOffsetM?: number; sigmaDistanceOffsetM?: number; discRadiusOffsetM?: number; sigmaDiscRadiusOffsetM?: number };
+  if (st.distanceOffsetM !== undefined) {
+    lines.push(`camera distance offset (fitted)                            ${(st.distanceOffsetM * 1e3).toFixed(2)} ± ${((st.sigmaDistanceOffsetM ?? NaN) * 1e3).toFixed(2)} mm`);
+  }
+  if (st.discRadiusOffsetM !== undefined) {
+    lines.push(`disc radius offset (fitted)                                ${(st.discRadiusOffsetM * 1e6).toFixed(2)} ± ${((st.sigmaDiscRadiusOffsetM ?? NaN) * 1e6).toFixed(2)} µm`);
+  }
   lines.push(`χ²/dof ${r.chi2PerDof.toFixed(3)} (${r.dof} dof), ${r.iterations} iterations, ${r.termination}, ${(r.elapsedMs / 1000).toFixed(2)} s`);
   r.regions.forEach((g, i) =>
     lines.push(`region${r.regions.length > 1 ? ` ${i + 1}` : ''}: circle of radius ${g.radiusPx.toFixed(1)} px around column ${g.centerPx[0].toFixed(1)}, row ${g.centerPx[1].toFixed(1)}, super-pixels of ${g.binning}×${g.binning}`),
