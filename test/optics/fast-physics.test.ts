@@ -189,13 +189,14 @@ describe('analytic derivatives', () => {
         const dr = (plus.re[i] - minus.re[i]) / (2 * h);
         const di = (plus.im[i] - minus.im[i]) / (2 * h);
         const scale = Math.hypot(dr, di) + 1e-6 * Math.hypot(f.re[i], f.im[i]) / h;
-        // Exact (rim sum) inside the shadow; where the free beam enters (edge and lit beam), its analytic
+        // Inside the shadow: the rim sum's analytic derivative (it leaves out the derivative of the small
+        // third-order correction for coma, ≲ 1e-3 relative); where the free beam enters (edge and lit beam), its analytic
         // derivative neglects third-derivative terms of W (documented in rimModel.ts): 1 % there at most.
         const ix = i % xs.length;
         const iy = Math.floor(i / xs.length);
         const r = Math.hypot(xs[ix], ys[iy]);
         const shadowRadius = 1.5e-3 * 1.4;
-        expect(Math.hypot(dr - f.dRe[p][i], di - f.dIm[p][i]) / scale).toBeLessThan(r < 0.95 * shadowRadius ? 1e-5 : 1e-2);
+        expect(Math.hypot(dr - f.dRe[p][i], di - f.dIm[p][i]) / scale).toBeLessThan(r < 0.95 * shadowRadius ? 1e-3 : 1e-2);
       }
     }
   });

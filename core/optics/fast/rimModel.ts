@@ -237,12 +237,25 @@ export function fastField(
   // Rim sums Σ_j h_j (and their derivatives), without the factor −Δφ.
   const rimRe = new Float64Array(nx * ny);
   const rimIm = new Float64Array(nx * ny);
-  if (np === 0) {
-    rimSums(X, Y, n, nx, ny, rimRe, rimIm);
-  } else {
+  if (np > 0) {
     const tables = derivativeTables(setup, t, terms, lambda, k, kap, n, nx, ny, X, Y, fxs, fys, lp, wantCenter);
     rimSumsWithDerivatives(X, Y, tables, n, nx, ny, rimRe, rimIm, dRe, dIm);
   }
+  if (np === 0) rimSums(X, Y, n, nx, ny, rimRe, rimIm);
+  // Next-order correction for non-quadratic wavefronts, blended out near the shadow edge where its
+  // expansion (in powers of 1/s) fails: full weight when the camera point is more than 2·d0 from the rim
+  // (in the disc plane), none within d0, d0 = 12·a/N.
+  const third = thirdOrderTable(setup, t, poly, n, k);
+  let corrRe: Float64Array | null = null;
+  let corrIm: Float64Array | null = null;
+  let corrEps: Float64Array | null = null;
+  if (third) {
+    corrRe = new Float64Array(nx * ny);
+    corrIm = new Float64Array(nx * ny);
+    corrEps = new Float64Array(nx * ny);
+    rimSumsThirdOrder(X, Y, third, n, nx, ny, corrRe, corrIm, corrEps);
+  }
+  const d0 = (12 * setup.disc.radiusM) / n;
 
   const termPolys = terms.map((jz) => ({
     plus: wavefrontPolynomial(lambda, setup.zernikeRadiusM, [...aberrations, { j: jz, waves: 1e-5 }]),
@@ -263,8 +276,19 @@ export function fastField(
     for (let ix = 0; ix < nx; ix++) {
       const pix = iy * nx + ix;
       // ∫∫_outside = −Δφ·Σh − Σ_near R·π·cot(Np/2) + U_all·(n_far_out/2 + n_near/4)
-      let totR = -dphi * rimRe[pix], totI = -dphi * rimIm[pix];
       const fx = fxs[ix], fy = fys[iy];
+      let sumR = rimRe[pix], sumI = rimIm[pix];
+      if (corrRe && corrIm) {
+        const dist = Math.abs(Math.hypot(fx, fy) - edgeRadius(setup.disc, Math.atan2(fy, fx)).r);
+        const x = Math.min(1, Math.max(0, (dist - d0) / d0));
+        // …and where the correction itself is large (low Fresnel numbers) the expansion is not trusted:
+        // full weight for max|ε| ≤ 0.05, none above 0.15.
+        const y = Math.min(1, Math.max(0, (0.15 - corrEps![pix]) / 0.1));
+        const wgt = x * x * (3 - 2 * x) * y * y * (3 - 2 * y);
+        sumR += wgt * (corrRe[pix] - sumR);
+        sumI += wgt * (corrIm[pix] - sumI);
+      }
+      let totR = -dphi * sumR, totI = -dphi * sumI;
       // Rim-sum derivatives → dU = (1/(iλL))·(−Δφ)·Σδh, with dF/dP = L'/L for the camera point.
       for (let p = 0; p < np; p++) {
         const sc = p >= nTerms ? lp / L : 1;
@@ -611,6 +635,130 @@ function rimSums(XT: Float64Array, YT: Float64Array, n: number, nx: number, ny: 
       }
       outRe[iy * nx + ix] = sr;
       outIm[iy * nx + ix] = si;
+    }
+  }
+}
+
+/**
+ * Next-order correction for wavefronts with third derivatives (coma, trefoil, spherical …).
+ * For a non-quadratic Φ, ∇·V = e^{iΦ}·(1 + ε) with
+ *   ε = [T(u,u,u)/s − Σ_l u_l·Σ_jk M_jk·T_jkl]/(i·s),  u = H⁻¹g, s = gᵀu, T = ∇∇∇Φ = k·∇∇∇W,
+ * (derived here from the divergence of V; M = H⁻¹). Treating ε as a slowly varying amplitude and applying
+ * the same divergence identity once more gives ∫∫ e^{iΦ} ≈ −∮ (1 − ε)·V·n. The rim sums of values are
+ * recomputed with that factor; derivatives keep the first-order form.
+ * Per rim sample: C[j·14 + ·] = M_xx (2), M_xy (2), M_yy (2), A_x (2), A_y (2), T_xxx, T_xxy, T_xyy, T_yyy,
+ * with A_l = Σ_jk M_jk·T_jkl.
+ */
+function thirdOrderTable(setup: BenchSetup, t: RimTables, poly: Polynomial2D, n: number, k: number): Float64Array | null {
+  if (poly.degree < 3) return null;
+  const C = new Float64Array(n * 14);
+  let any = false;
+  for (let j = 0; j < n; j++) {
+    const [txxx, txxy, txyy, tyyy] = evalThirdDerivatives(poly, t.qx[j], t.qy[j]).map((v) => k * v);
+    if (txxx || txxy || txyy || tyyy) any = true;
+    const o = j * 14;
+    C[o] = t.mxxr[j]; C[o + 1] = t.mxxi[j];
+    C[o + 2] = t.mxyr[j]; C[o + 3] = t.mxyi[j];
+    C[o + 4] = t.myyr[j]; C[o + 5] = t.myyi[j];
+    C[o + 6] = t.mxxr[j] * txxx + 2 * t.mxyr[j] * txxy + t.myyr[j] * txyy;
+    C[o + 7] = t.mxxi[j] * txxx + 2 * t.mxyi[j] * txxy + t.myyi[j] * txyy;
+    C[o + 8] = t.mxxr[j] * txxy + 2 * t.mxyr[j] * txyy + t.myyr[j] * tyyy;
+    C[o + 9] = t.mxxi[j] * txxy + 2 * t.mxyi[j] * txyy + t.myyi[j] * tyyy;
+    C[o + 10] = txxx; C[o + 11] = txxy; C[o + 12] = txyy; C[o + 13] = tyyy;
+  }
+  void setup;
+  return any ? C : null;
+}
+
+/** Third derivatives [W_xxx, W_xxy, W_xyy, W_yyy] of a polynomial at a real point. */
+function evalThirdDerivatives(p: Polynomial2D, x: number, y: number): [number, number, number, number] {
+  let a = 0, b = 0, c = 0, d = 0;
+  for (let m = 0; m < p.coef.length; m++) {
+    const px = p.px[m], py = p.py[m], cf = p.coef[m];
+    const term = (dx: number, dy: number) => {
+      if (px < dx || py < dy) return 0;
+      let f = cf;
+      for (let i = 0; i < dx; i++) f *= px - i;
+      for (let i = 0; i < dy; i++) f *= py - i;
+      return f * Math.pow(x, px - dx) * Math.pow(y, py - dy);
+    };
+    a += term(3, 0);
+    b += term(2, 1);
+    c += term(1, 2);
+    d += term(0, 3);
+  }
+  return [a, b, c, d];
+}
+
+function rimSumsThirdOrder(
+  XT: Float64Array,
+  YT: Float64Array,
+  C: Float64Array,
+  n: number,
+  nx: number,
+  ny: number,
+  outRe: Float64Array,
+  outIm: Float64Array,
+  /** largest |ε| over the rim for each camera point (the size of the correction) */
+  outMaxEps: Float64Array,
+): void {
+  for (let iy = 0; iy < ny; iy++) {
+    const yo = iy * n * 8;
+    for (let ix = 0; ix < nx; ix++) {
+      let xa = ix * n * 10;
+      let yb = yo;
+      let co = 0;
+      let sr = 0;
+      let si = 0;
+      let maxEps2 = 0;
+      for (let j = 0; j < n; j++, xa += 10, yb += 8, co += 14) {
+        const axr = XT[xa], axi = XT[xa + 1];
+        const eyr = YT[yb], eyi = YT[yb + 1];
+        const er = axr * eyr - axi * eyi;
+        const ei = axr * eyi + axi * eyr;
+        const nr = XT[xa + 2] + YT[yb + 2];
+        const ni = XT[xa + 3] + YT[yb + 3];
+        const x2r = XT[xa + 6], x2i = XT[xa + 7], dyr = YT[yb + 6], dyi = YT[yb + 7];
+        const ddr = XT[xa + 4] + YT[yb + 4] + x2r * dyr - x2i * dyi;
+        const ddi = XT[xa + 5] + YT[yb + 5] + x2r * dyi + x2i * dyr;
+        const inv = 1 / (ddr * ddr + ddi * ddi);
+        const isr = ddr * inv, isi = -ddi * inv; // 1/s
+        let qr = nr * isr - ni * isi;
+        let qi = nr * isi + ni * isr;
+        // u = M·d
+        const dxr = XT[xa + 8], dxi = XT[xa + 9];
+        const mxxr = C[co], mxxi = C[co + 1], mxyr = C[co + 2], mxyi = C[co + 3], myyr = C[co + 4], myyi = C[co + 5];
+        const uxr = mxxr * dxr - mxxi * dxi + mxyr * dyr - mxyi * dyi;
+        const uxi = mxxr * dxi + mxxi * dxr + mxyr * dyi + mxyi * dyr;
+        const uyr = mxyr * dxr - mxyi * dxi + myyr * dyr - myyi * dyi;
+        const uyi = mxyr * dxi + mxyi * dxr + myyr * dyi + myyi * dyr;
+        // T(u,u,u) = Txxx ux³ + 3 Txxy ux² uy + 3 Txyy ux uy² + Tyyy uy³
+        const ux2r = uxr * uxr - uxi * uxi, ux2i = 2 * uxr * uxi;
+        const uy2r = uyr * uyr - uyi * uyi, uy2i = 2 * uyr * uyi;
+        const ux3r = ux2r * uxr - ux2i * uxi, ux3i = ux2r * uxi + ux2i * uxr;
+        const uy3r = uy2r * uyr - uy2i * uyi, uy3i = uy2r * uyi + uy2i * uyr;
+        const x2yr = ux2r * uyr - ux2i * uyi, x2yi = ux2r * uyi + ux2i * uyr;
+        const xy2r = uy2r * uxr - uy2i * uxi, xy2i = uy2r * uxi + uy2i * uxr;
+        const Txxx = C[co + 10], Txxy = C[co + 11], Txyy = C[co + 12], Tyyy = C[co + 13];
+        const tur = Txxx * ux3r + 3 * Txxy * x2yr + 3 * Txyy * xy2r + Tyyy * uy3r;
+        const tui = Txxx * ux3i + 3 * Txxy * x2yi + 3 * Txyy * xy2i + Tyyy * uy3i;
+        // a = T(u,u,u)/s − (A_x u_x + A_y u_y)
+        const ar = tur * isr - tui * isi - (C[co + 6] * uxr - C[co + 7] * uxi + C[co + 8] * uyr - C[co + 9] * uyi);
+        const ai = tur * isi + tui * isr - (C[co + 6] * uxi + C[co + 7] * uxr + C[co + 8] * uyi + C[co + 9] * uyr);
+        // ε = a/(i·s) = −i·a/s ;  factor (1 − ε)
+        const asr = ar * isr - ai * isi, asi = ar * isi + ai * isr;
+        const e2 = asr * asr + asi * asi;
+        if (e2 > maxEps2) maxEps2 = e2;
+        const fr = 1 - asi, fi = asr; // 1 − (−i)(asr + i·asi) = 1 − asi + i·asr
+        const q2r = qr * fr - qi * fi;
+        qi = qr * fi + qi * fr;
+        qr = q2r;
+        sr += er * qi + ei * qr;
+        si -= er * qr - ei * qi;
+      }
+      outRe[iy * nx + ix] = sr;
+      outIm[iy * nx + ix] = si;
+      outMaxEps[iy * nx + ix] = Math.sqrt(maxEps2);
     }
   }
 }
