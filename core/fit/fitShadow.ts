@@ -269,6 +269,42 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   refreshSigma(coarse, best);
   let sol = runLM(coarse, best, 0.2, 0.3);
 
+  // --- a poor first minimum: strong astigmatism splits the spot and can mislead the pattern locator and
+  // the defocus search. Try a wider set of starts (centre offsets around the first start, astigmatism
+  // of either sign), rank them cheaply on the search data, and refine the best few.
+  const coarseDof = Math.max(1, coarse.data.length - np);
+  if (sol.chi2 / coarseDof > 3) {
+    const spotRadiusM = (2.405 * inputs[0].setup.camera.distanceM) / (((2 * Math.PI) / inputs[0].setup.wavelengthM) * inputs[0].setup.disc.radiusM);
+    const i3 = terms.indexOf(3), i5 = terms.indexOf(5);
+    const astigStarts: [number, number][] = [[0, 0]];
+    if (i3 >= 0 || i5 >= 0) for (const v of [0.15, -0.15]) astigStarts.push([v, 0], [0, v], [v, v], [v, -v]);
+    const candidates: { q: Float64Array; c2: number }[] = [];
+    const offsets: [number, number][] = [[0, 0]];
+    for (let k = 0; k < 8; k++) offsets.push([0.6 * spotRadiusM * Math.cos((k * Math.PI) / 4), 0.6 * spotRadiusM * Math.sin((k * Math.PI) / 4)]);
+    for (const [ox, oy] of offsets) {
+      for (const [a3, a5] of astigStarts) {
+        for (const c4 of iDefocus >= 0 ? [best[iDefocus] - 0.1, best[iDefocus], best[iDefocus] + 0.1] : [0]) {
+          const q = Float64Array.from(p);
+          for (let f = 0; f < inputs.length; f++) {
+            q[nz + 4 * f] += ox;
+            q[nz + 4 * f + 1] += oy;
+          }
+          if (i3 >= 0) q[i3] = a3;
+          if (i5 >= 0) q[i5] = a5;
+          if (iDefocus >= 0) q[iDefocus] = c4;
+          candidates.push({ q, c2: setScaleBackground(q) });
+        }
+      }
+      step(0.3, 'wider search');
+    }
+    candidates.sort((a, b) => a.c2 - b.c2);
+    for (const cand of candidates.slice(0, 4)) {
+      const trial = runLM(coarse, cand.q, 0.3, 0.1);
+      if (trial.chi2 < sol.chi2) sol = trial;
+      if (sol.chi2 / coarseDof < 2) break;
+    }
+  }
+
   // --- the sign-flipped even-m alternative, on the coarse stage
   const even = evenTermIndices(terms);
   let alternativeGap: number | null = null;

@@ -350,7 +350,8 @@ export interface DecodedNpyFrame {
 /**
  * Decode a `.npy` file holding one grayscale frame: shape (rows, columns), or (rows, columns, 1) /
  * (1, rows, columns) with a single channel or plane. Throws ImageDecodeError 'wrong dimensions' for
- * any other shape, or when `expected` is given and the size differs.
+ * any other shape, or when `expected` is given and the size differs, and 'truncated or corrupt' when
+ * a value is NaN or ±Infinity (the message says how many and where the first one is).
  */
 export function decodeNpyFrame(bytes: Uint8Array, expected?: { widthPx: number; heightPx: number }): DecodedNpyFrame {
   const { data, shape, dtype } = decodeNpy(bytes);
@@ -364,6 +365,21 @@ export function decodeNpyFrame(bytes: Uint8Array, expected?: { widthPx: number; 
     throw new ImageDecodeError(
       'wrong dimensions',
       `expected ${expected.widthPx} × ${expected.heightPx} px, file holds ${widthPx} × ${heightPx} px`,
+    );
+  }
+  let nonFinite = 0;
+  let firstBad = -1;
+  for (let k = 0; k < data.length; k++) {
+    if (!Number.isFinite(data[k])) {
+      if (firstBad < 0) firstBad = k;
+      nonFinite++;
+    }
+  }
+  if (nonFinite > 0) {
+    const row = Math.floor(firstBad / widthPx);
+    throw new ImageDecodeError(
+      'truncated or corrupt',
+      `the frame holds ${nonFinite} non-finite value${nonFinite === 1 ? '' : 's'} (NaN or ±Infinity), the first at row ${row}, column ${firstBad - row * widthPx} (value ${data[firstBad]}); a camera frame holds finite counts`,
     );
   }
   return { data, widthPx, heightPx, dtype };

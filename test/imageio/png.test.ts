@@ -92,11 +92,38 @@ describe('encodePng8 and decodePngFrame', () => {
     expect(Array.from(f.data)).toEqual(vals);
   });
 
-  it('refuses colour images, non-PNG bytes and truncated files', () => {
-    const rgb = encode({ width: 2, height: 2, data: new Uint8Array(12), depth: 8, channels: 3 });
-    expect(reasonOf(() => decodePngFrame(rgb))).toBe('unsupported format');
+  it('converts colour images to gray with the ITU-R BT.709 luma weights and warns', () => {
+    // ITU-R BT.709-6 (06/2015), Part 1, item 3.2: E'Y = 0.2126 E'R + 0.7152 E'G + 0.0722 E'B.
+    const rgb = encode({ width: 4, height: 1, data: Uint8Array.from([200, 0, 0, 0, 200, 0, 0, 0, 200, 50, 50, 50]), depth: 8, channels: 3 });
+    const f = decodePngFrame(rgb);
+    expect(f.data[0]).toBeCloseTo(0.2126 * 200, 10);
+    expect(f.data[1]).toBeCloseTo(0.7152 * 200, 10);
+    expect(f.data[2]).toBeCloseTo(0.0722 * 200, 10);
+    expect(f.data[3]).toBeCloseTo(50, 10);
+    expect(f.bitDepth).toBe(8);
+    expect(f.warnings.join()).toMatch(/colour image: converted to gray with the ITU-R BT\.709 luma weights/);
+    // 16-bit RGBA: alpha ignored, the weights applied to the 16-bit samples.
+    const rgba16 = encode({ width: 1, height: 1, data: Uint16Array.from([60000, 30000, 1000, 7]), depth: 16, channels: 4 });
+    const g = decodePngFrame(rgba16);
+    expect(g.data[0]).toBeCloseTo(0.2126 * 60000 + 0.7152 * 30000 + 0.0722 * 1000, 8);
+    expect(g.bitDepth).toBe(16);
+    // Palette (colour type 3): the palette colours are converted.
+    const pal = encode({ width: 2, height: 1, data: Uint8Array.from([0, 1]), depth: 8, channels: 1, palette: [[0, 0, 0], [0, 0, 255]] });
+    const h = decodePngFrame(pal);
+    expect(h.data[1]).toBeCloseTo(0.0722 * 255, 10);
+    expect(h.warnings.join()).toMatch(/palette/);
+    // Grey + alpha: the grey samples, with a warning that alpha was ignored.
+    const ga = decodePngFrame(encode({ width: 2, height: 1, data: Uint8Array.from([9, 255, 17, 0]), depth: 8, channels: 2 }));
+    expect(Array.from(ga.data)).toEqual([9, 17]);
+    expect(ga.warnings.join()).toMatch(/alpha/);
+  });
+
+  it('refuses non-PNG bytes, truncated files and corrupted chunks (PNG spec: CRC-32 of each chunk)', () => {
     expect(reasonOf(() => decodePngFrame(new Uint8Array([1, 2, 3, 4, 5, 6, 7, 8, 9])))).toBe('unsupported format');
     const good = encodePng16(counts16(), W, H);
     expect(reasonOf(() => decodePngFrame(good.subarray(0, 40)))).toBe('truncated or corrupt');
+    const bad = good.slice();
+    bad[20] ^= 0x01; // a bit of the IHDR width: the chunk's CRC no longer matches
+    expect(reasonOf(() => decodePngFrame(bad))).toBe('truncated or corrupt');
   });
 });
