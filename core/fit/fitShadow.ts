@@ -22,6 +22,7 @@ import {
   type ModelLayout,
 } from './frameModel.ts';
 import { RESULT_FORMAT, type FitResult, type Termination } from './result.ts';
+import { symmetryCentrePx } from './symmetryCentre.ts';
 
 export const DEFAULT_TERMS = [3, 4, 5, 7, 8] as const;
 export const OPTIONAL_TERMS = [6, 9, 12] as const;
@@ -281,6 +282,17 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     const candidates: { q: Float64Array; c2: number }[] = [];
     const offsets: [number, number][] = [[0, 0]];
     for (let k = 0; k < 8; k++) offsets.push([0.6 * spotRadiusM * Math.cos((k * Math.PI) / 4), 0.6 * spotRadiusM * Math.sin((k * Math.PI) / 4)]);
+    // The centre of point symmetry of the first frame, as an offset from the first start (all frames move together).
+    const f0 = inputs[0];
+    const sym = symmetryCentrePx(f0.counts, f0.widthPx, f0.heightPx, f0.mask);
+    if (sym) {
+      const pitch = f0.setup.camera.pixelPitchM;
+      const sx = (sym[0] - (f0.widthPx - 1) / 2) * pitch;
+      const sy = -(sym[1] - (f0.heightPx - 1) / 2) * pitch;
+      const ox = sx - p[nz], oy = sy - p[nz + 1];
+      offsets.push([ox, oy]);
+      for (let k = 0; k < 4; k++) offsets.push([ox + 0.3 * spotRadiusM * Math.cos((k * Math.PI) / 2), oy + 0.3 * spotRadiusM * Math.sin((k * Math.PI) / 2)]);
+    }
     for (const [ox, oy] of offsets) {
       for (const [a3, a5] of astigStarts) {
         for (const c4 of iDefocus >= 0 ? [best[iDefocus] - 0.1, best[iDefocus], best[iDefocus] + 0.1] : [0]) {
