@@ -352,41 +352,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   }
   refreshSigma(fine, sol.params);
   sol = runLM(fine, sol.params, 0.8, 0.1);
-
-  // --- systematic check at the shadow edge. The fast model is least accurate within about a quarter of
-  // the shadow radius of the edge (core/optics/README.md); a small model error there, coherent over
-  // thousands of pixels, can bias the coefficients by more than their statistical σ while χ² hardly moves.
-  // So the fit is repeated without that band: where the two disagree beyond what the lost data explain
-  // (|Δ| > 3σ of the difference), the shift is added to σ in quadrature and the result says so.
-  let edgeShift: Float64Array | null = null;
-  let edgeNote: string | null = null;
-  {
-    const band = edgeBandRows(fine, sol.params);
-    if (band.length > 50 && band.length < 0.8 * fine.data.length) {
-      const saved = Float64Array.from(fine.sigma);
-      for (const i of band) fine.sigma[i] = 1e12;
-      const inner = runLM(fine, sol.params, 0.85, 0.05);
-      const innerCov = invertSPD(inner.normalMatrix, np);
-      fine.sigma.set(saved);
-      const fullCov = invertSPD(sol.normalMatrix, np);
-      if (innerCov && fullCov) {
-        const shift = new Float64Array(nz);
-        let worst = 0;
-        for (let k = 0; k < nz; k++) {
-          const d = sol.params[k] - inner.params[k];
-          const v = Math.max(innerCov[k * np + k] - fullCov[k * np + k], 1e-30);
-          worst = Math.max(worst, Math.abs(d) / Math.sqrt(v));
-          shift[k] = d;
-        }
-        if (worst > 3) {
-          edgeShift = shift;
-          edgeNote = `the shadow edge and the inside of the shadow disagree (up to ${worst.toFixed(1)}σ of their difference): the model's accuracy at the edge limits this measurement, so each coefficient's σ includes the shift between the two (${terms.map((j, k) => `j${j} ${shift[k].toExponential(1)}`).join(', ')} waves)`;
-        }
-      }
-    }
-  }
-
-  step(0.95, 'uncertainties');
+  step(0.9, 'uncertainties');
   // The steps used centre-sampled derivatives; the covariance takes the pixel-integrated ones.
   {
     const { r, J } = makeWeighted(problem, 'exact').evaluate(sol.params, true);
@@ -399,8 +365,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   const chi2PerDof = sol.chi2 / dof;
   const cov = invertSPD(sol.normalMatrix, np);
   const scaleCov = Math.max(1, chi2PerDof);
-  const sigmaOf = (k: number) =>
-    cov ? Math.sqrt(Math.max(cov[k * np + k], 0) * scaleCov + (edgeShift && k < nz ? edgeShift[k] * edgeShift[k] : 0)) : NaN;
+  const sigmaOf = (k: number) => (cov ? Math.sqrt(Math.max(cov[k * np + k], 0) * scaleCov) : NaN);
   const names = parameterNames(layout);
   void names;
   const lambda = inputs[0].setup.wavelengthM;
@@ -469,7 +434,6 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     );
   }
   if (noiseNote) warnings.push(noiseNote);
-  if (edgeNote) warnings.push(edgeNote);
   if (!options.discCalibrated) {
     warnings.push('the disc shape is not calibrated: astigmatism may include disc ellipticity (measure with the disc turned by 90° to separate them)');
   }
@@ -536,29 +500,6 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     warnings,
     trusted,
   };
-}
-
-/** Rows (super-pixels) within ±0.3 shadow radii of the geometric shadow edge, around the fitted centres. */
-function edgeBandRows(pr: Problem, p: Float64Array): number[] {
-  const nz = pr.layout.terms.length;
-  const rows: number[] = [];
-  let row = 0;
-  for (let f = 0; f < pr.frames.length; f++) {
-    const fr = pr.frames[f];
-    const inp = fr.input;
-    const pitch = inp.setup.camera.pixelPitchM;
-    const R = (inp.setup.disc.radiusM * inp.setup.camera.distanceM) / effectiveDistanceM(inp.setup.camera.distanceM, inp.setup.beam.curvatureRadiusM);
-    const cx = p[nz + 4 * f], cy = p[nz + 4 * f + 1];
-    for (let u = 0; u < fr.used.length; u++, row++) {
-      const cell = fr.used[u];
-      const bx = cell % fr.nbx;
-      const by = (cell - bx) / fr.nbx;
-      const x = (bx * fr.binning + (fr.binning - 1) / 2 - (inp.widthPx - 1) / 2) * pitch - cx;
-      const y = -(by * fr.binning + (fr.binning - 1) / 2 - (inp.heightPx - 1) / 2) * pitch - cy;
-      if (Math.abs(Math.hypot(x, y) - R) < 0.3 * R) rows.push(row);
-    }
-  }
-  return rows;
 }
 
 /**
