@@ -241,7 +241,6 @@ export function fastField(
     const tables = derivativeTables(setup, t, terms, lambda, k, kap, n, nx, ny, X, Y, fxs, fys, lp, wantCenter);
     rimSumsWithDerivatives(X, Y, tables, n, nx, ny, rimRe, rimIm, dRe, dIm);
   }
-  if (np === 0) rimSums(X, Y, n, nx, ny, rimRe, rimIm);
   // Next-order correction for non-quadratic wavefronts, blended out near the shadow edge where its
   // expansion (in powers of 1/s) fails: full weight when the camera point is more than 2·d0 from the rim
   // (in the disc plane), none within d0, d0 = 12·a/N.
@@ -253,8 +252,8 @@ export function fastField(
     corrRe = new Float64Array(nx * ny);
     corrIm = new Float64Array(nx * ny);
     corrEps = new Float64Array(nx * ny);
-    rimSumsThirdOrder(X, Y, third, n, nx, ny, corrRe, corrIm, corrEps);
-  }
+    rimSumsThirdOrder(X, Y, third, n, nx, ny, corrRe, corrIm, corrEps, np === 0 ? rimRe : null, np === 0 ? rimIm : null);
+  } else if (np === 0) rimSums(X, Y, n, nx, ny, rimRe, rimIm);
   const d0 = (12 * setup.disc.radiusM) / n;
 
   const termPolys = terms.map((jz) => ({
@@ -701,6 +700,9 @@ function rimSumsThirdOrder(
   outIm: Float64Array,
   /** largest |ε| over the rim for each camera point (the size of the correction) */
   outMaxEps: Float64Array,
+  /** when given, also the first-order sums (the same pass) */
+  firstRe: Float64Array | null = null,
+  firstIm: Float64Array | null = null,
 ): void {
   for (let iy = 0; iy < ny; iy++) {
     const yo = iy * n * 8;
@@ -711,6 +713,8 @@ function rimSumsThirdOrder(
       let sr = 0;
       let si = 0;
       let maxEps2 = 0;
+      let fr1 = 0;
+      let fi1 = 0;
       for (let j = 0; j < n; j++, xa += 10, yb += 8, co += 14) {
         const axr = XT[xa], axi = XT[xa + 1];
         const eyr = YT[yb], eyi = YT[yb + 1];
@@ -725,6 +729,8 @@ function rimSumsThirdOrder(
         const isr = ddr * inv, isi = -ddi * inv; // 1/s
         let qr = nr * isr - ni * isi;
         let qi = nr * isi + ni * isr;
+        fr1 += er * qi + ei * qr;
+        fi1 -= er * qr - ei * qi;
         // u = M·d
         const dxr = XT[xa + 8], dxi = XT[xa + 9];
         const mxxr = C[co], mxxi = C[co + 1], mxyr = C[co + 2], mxyi = C[co + 3], myyr = C[co + 4], myyi = C[co + 5];
@@ -759,6 +765,10 @@ function rimSumsThirdOrder(
       outRe[iy * nx + ix] = sr;
       outIm[iy * nx + ix] = si;
       outMaxEps[iy * nx + ix] = Math.sqrt(maxEps2);
+      if (firstRe && firstIm) {
+        firstRe[iy * nx + ix] = fr1;
+        firstIm[iy * nx + ix] = fi1;
+      }
     }
   }
 }
