@@ -70,16 +70,7 @@ export function writeBytesAtomic(path: string, bytes: Uint8Array): void {
       closeSync(fd);
     }
     renameSync(tmp, target);
-    try {
-      const dfd = openSync(dir, 'r');
-      try {
-        fsyncSync(dfd);
-      } finally {
-        closeSync(dfd);
-      }
-    } catch {
-      // Some file systems cannot fsync a folder; the rename is still atomic.
-    }
+    syncFolder(dir);
   } catch (err) {
     throw new FileProblem(path, `could not write: ${describeFsError(err)}`);
   }
