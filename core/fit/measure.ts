@@ -53,8 +53,6 @@ export function measureBeam(sets: FrameSet[], options: MeasureOptions = {}): Fit
     notes.push(...prepared.warnings);
     if (!known) notes.push(...located.warnings.map((w) => `${prepared.label}: ${w}`));
     notes.push(`${prepared.label}: region analysed: ${region.description}`);
-    if (prepared.saturatedCount > 0) notes.push(`${prepared.label}: ${prepared.saturatedCount} saturated pixels were left out`);
-    if (prepared.hotCount > 0) notes.push(`${prepared.label}: ${prepared.hotCount} hot pixels were left out`);
   }
   // Unknown noise (no dark frames, nothing given): estimate it from the residuals.
   const estimateNoise =
