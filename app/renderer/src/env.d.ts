@@ -1,0 +1,2 @@
+/** Side-effect style imports handled by the bundler (vite). */
+declare module '*.css';
