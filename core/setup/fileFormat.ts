@@ -27,6 +27,8 @@ export interface SetupBodyJson {
     bitDepth: number;
     saturation: number;
     orientation: { flip: FlipName; rotate: string };
+    /** [width, height] in pixels; written only when known. */
+    sensorSize?: [number, number];
   };
   zernike: { radius: string };
   source: { size: string };

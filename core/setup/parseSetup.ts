@@ -20,7 +20,7 @@ export const SCENE_ONLY_FIELDS = ['aberrations', 'frame', 'noise'] as const;
 const BEAM_FIELDS = ['radius', 'center', 'curvatureRadius'];
 const DISC_FIELDS = ['diameter', 'ellipticity', 'ellipseAngle', 'edgeHarmonics'];
 const HARMONIC_FIELDS = ['order', 'amplitude', 'phase'];
-const CAMERA_FIELDS = ['distance', 'pixelPitch', 'bitDepth', 'saturation', 'orientation'];
+const CAMERA_FIELDS = ['distance', 'pixelPitch', 'bitDepth', 'saturation', 'orientation', 'sensorSize'];
 const ORIENTATION_FIELDS = ['flip', 'rotate'];
 const ZERNIKE_FIELDS = ['radius'];
 const SOURCE_FIELDS = ['size'];
@@ -48,6 +48,9 @@ export const MAX_HARMONIC_ORDER = 200;
 
 const FLIP_NAMES: readonly FlipName[] = ['none', 'horizontal', 'vertical', 'both'];
 const ROTATIONS = [0, 90, 180, 270] as const;
+/** Accepted sensor sides, pixels. */
+export const SENSOR_MIN_PX = 8;
+export const SENSOR_MAX_PX = 65536;
 
 /**
  * Parse a "shadowfront-setup/1" JSON value (already decoded with JSON.parse) into SI units.
@@ -139,6 +142,7 @@ export function readSetupBody(reader: FieldReader, root: Record<string, unknown>
     fullScale,
   );
   const orientation = readOrientation(reader, reader.at(camera, 'orientation', 'camera'));
+  const sensorPx = readSensorSize(reader, reader.at(camera, 'sensorSize', 'camera'));
 
   // Zernike normalisation.
   const zernikeField = reader.at(root, 'zernike', '');
@@ -201,7 +205,7 @@ export function readSetupBody(reader: FieldReader, root: Record<string, unknown>
     wavelengthM,
     beam: { radiusM: beamRadiusM, centerM: beamCenterM, curvatureRadiusM },
     disc: { radiusM: discRadiusM, ellipticity, ellipseAngleRad, edgeHarmonics },
-    camera: { distanceM, pixelPitchM, bitDepth, saturationCounts, orientation },
+    camera: { distanceM, pixelPitchM, bitDepth, saturationCounts, orientation, sensorPx },
     zernikeRadiusM,
     source: { sizeM: sourceSizeM },
   };
@@ -244,6 +248,26 @@ function readEdgeHarmonics(reader: FieldReader, field: Field): EdgeHarmonic[] {
     const phaseRad = reader.angle(reader.at(obj, 'phase', itemField.path), '0 deg', 0);
     return { order, amplitudeM, phaseRad };
   });
+}
+
+/**
+ * `camera.sensorSize`: [width, height] in pixels, whole numbers from SENSOR_MIN_PX to SENSOR_MAX_PX; null when
+ * absent. Shared with the plan format (core/plan/parsePlan.ts), which requires it.
+ */
+export function readSensorSize(reader: FieldReader, field: Field, required = false): [number, number] | null {
+  const expected = `a pair of whole pixel counts [width, height] such as [1280, 1024], each from ${SENSOR_MIN_PX} to ${SENSOR_MAX_PX}`;
+  if (!field.present) {
+    if (required) reader.missing(field, expected);
+    return null;
+  }
+  if (!Array.isArray(field.value) || field.value.length !== 2) reader.fail(field, expected);
+  const items = field.value as unknown[];
+  return [0, 1].map((i) =>
+    reader.number(
+      { value: items[i], path: childPath(field.path, i), present: true },
+      { example: i === 0 ? '1280' : '1024', what: `a whole number of pixels (sensor ${i === 0 ? 'width' : 'height'})`, integer: true, min: SENSOR_MIN_PX, max: SENSOR_MAX_PX },
+    ),
+  ) as [number, number];
 }
 
 function readOrientation(reader: FieldReader, field: Field): CameraOrientation {
@@ -301,6 +325,7 @@ export function setupBodyToJson(setup: BenchSetup, options: ToJsonOptions = {}):
       bitDepth: camera.bitDepth,
       saturation: camera.saturationCounts,
       orientation: { flip: flipName(camera.orientation), rotate: `${camera.orientation.rotateDeg} deg` },
+      ...(camera.sensorPx ? { sensorSize: [camera.sensorPx[0], camera.sensorPx[1]] as [number, number] } : {}),
     },
     zernike: { radius: formatQuantity(setup.zernikeRadiusM, 'mm') },
     source: { size: formatQuantity(setup.source.sizeM, 'mm') },

@@ -47,6 +47,11 @@ export interface CameraSpec {
   /** Counts at and above which a pixel is saturated; default 2^bitDepth − 1. */
   saturationCounts: number;
   orientation: CameraOrientation;
+  /**
+   * Sensor size [width, height] in pixels, from the optional `camera.sensorSize`; null when not given.
+   * `parseSetup` always sets it (null when absent); setups built in code may leave it out.
+   */
+  sensorPx?: [number, number] | null;
 }
 
 export interface SourceSpec {

@@ -68,7 +68,8 @@ function withField(json: Record<string, any>, path: string, value: unknown): Rec
 }
 
 describe('example files', () => {
-  const files = readdirSync(EXAMPLES).filter((f) => f.endsWith('.json'));
+  // Bench plans ("shadowfront-plan/1") are checked in test/plan/parsePlan.test.ts.
+  const files = readdirSync(EXAMPLES).filter((f) => f.endsWith('.json') && !f.startsWith('plan-'));
 
   it('include the four documented examples', () => {
     for (const name of ['setup-hene-collimated.json', 'scene-hene-astig.json', 'scene-diverging-green.json', 'scene-clean.json']) {
@@ -273,6 +274,7 @@ describe('round trip', () => {
       bitDepth: 10,
       saturationCounts: 1000,
       orientation: { flipX: true, flipY: false, rotateDeg: 270 },
+      sensorPx: [5472, 3648],
     },
     zernikeRadiusM: Math.SQRT2 * 1e-3,
     source: { sizeM: 1 / 3e4 },
@@ -528,5 +530,34 @@ describe('unknown fields', () => {
     const err = catchFieldError(() => parseSetup({ ...baseSetup(), frame: { width: 256, height: 256 } }, 'setup.json'));
     expect(err.path).toBe('frame');
     expect(err.detail).toContain('only scene files');
+  });
+});
+
+describe('camera.sensorSize (optional)', () => {
+  it('is null when absent and [width, height] in pixels when given (format rule)', () => {
+    expect(parseSetup(baseSetup()).camera.sensorPx).toBeNull();
+    expect(parseSetup(withField(baseSetup(), 'camera.sensorSize', [1280, 1024])).camera.sensorPx).toStrictEqual([1280, 1024]);
+    expect(parseScene(withField(baseScene(), 'camera.sensorSize', [8, 65536])).camera.sensorPx).toStrictEqual([8, 65536]);
+  });
+
+  it('is written back only when known', () => {
+    const known = setupToJson(parseSetup(withField(baseSetup(), 'camera.sensorSize', [1920, 1200])));
+    expect(known.camera.sensorSize).toStrictEqual([1920, 1200]);
+    expect(parseSetup(JSON.parse(JSON.stringify(known))).camera.sensorPx).toStrictEqual([1920, 1200]);
+    expect('sensorSize' in setupToJson(parseSetup(baseSetup())).camera).toBe(false);
+  });
+
+  it.each([
+    ['camera.sensorSize', [1280], '[1280]'],
+    ['camera.sensorSize', '1280 x 1024', '"1280 x 1024"'],
+    ['camera.sensorSize[0]', [1280.5, 1024], '1280.5'],
+    ['camera.sensorSize[1]', [1280, 4], '4'],
+    ['camera.sensorSize[1]', [1280, '1024 px'], '"1024 px"'],
+  ])('refuses a bad value at %s, naming the file, the field and the value', (path, value, shown) => {
+    const err = catchFieldError(() => parseSetup(withField(baseSetup(), 'camera.sensorSize', value), 'bench.json'));
+    expect(err.file).toBe('bench.json');
+    expect(err.path).toBe(path);
+    expect(err.message).toContain(`bench.json: field "${path}" is ${shown}`);
+    expect(err.message).toContain('pixel');
   });
 });
