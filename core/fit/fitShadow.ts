@@ -16,6 +16,7 @@ import {
   parameterCount,
   parameterNames,
   rimSamplesFor,
+  sharedParameterIndex,
   superPixelVariance,
   type BinnedFrame,
   type FitFrameInput,
@@ -23,6 +24,13 @@ import {
 } from './frameModel.ts';
 import { RESULT_FORMAT, type FitResult, type Termination } from './result.ts';
 import { symmetryCentrePx } from './symmetryCentre.ts';
+import type { ZernikeTerm } from '../setup/types.ts';
+import { checkDiscOrders, discWithShape } from './disc/shape.ts';
+import type { AppliedDiscProfile, DiscShapeResult } from './disc/profile.ts';
+import { summariseDiscShape } from './disc/summary.ts';
+import { profileCovariance } from './disc/propagate.ts';
+import { sourceBlurDiameterM } from './sourceBlur.ts';
+import { referenceCorrections, regionReachesShadowEdge, type PolishMode } from './referencePolish.ts';
 
 export const DEFAULT_TERMS = [3, 4, 5, 7, 8] as const;
 export const OPTIONAL_TERMS = [6, 9, 12] as const;
@@ -41,6 +49,21 @@ export interface FitOptions {
   initialCentersM?: [number, number][];
   /** Whether the disc's shape is calibrated (drops the disc-shape warning). */
   discCalibrated?: boolean;
+  /**
+   * Disc edge orders whose shape is fitted together with the beam (2 = ellipticity; 3, 4 = edge harmonics;
+   * ./disc/shape.ts), shared by all frames and turned by each frame's `discRotationRad`. Frames at several
+   * disc angles separate them from the beam's same-m terms; otherwise the result says they are degenerate.
+   */
+  discOrders?: readonly number[];
+  /**
+   * A calibrated disc profile: its shape, turned by each frame's disc rotation, replaces the setups' disc
+   * ellipticity and harmonics of orders 2–4; the disc-shape warning is dropped and the result records it.
+   */
+  discProfile?: AppliedDiscProfile | null;
+  /** Fit the source diameter S (needs a finite beam curvature: the blur is S·L/G with G = |R|). */
+  freeSourceSize?: boolean;
+  /** Known aberrations (waves), held fixed and not fitted (a reference beam); must not repeat a fitted term. */
+  knownAberrations?: readonly ZernikeTerm[];
   software?: string;
   maxIterations?: number;
   /** Progress 0..1 with a stage name; return false to cancel. */
@@ -51,6 +74,11 @@ export interface FitOptions {
    * residual structure can flag a wrong minimum.
    */
   estimateNoise?: boolean;
+  /**
+   * Polish the solution with the reference model (./referencePolish.ts): 'auto' (default) for frames
+   * whose region reaches the shadow edge, 'always', or 'never'.
+   */
+  referencePolish?: PolishMode;
 }
 
 export class FitInputError extends Error {
@@ -71,7 +99,8 @@ function ringPeriodM(f: FitFrameInput): number {
   return (f.setup.wavelengthM * f.setup.camera.distanceM) / (2 * f.setup.disc.radiusM);
 }
 
-function autoBinning(frames: FitFrameInput[]): number {
+/** Super-pixel size the fit picks by default: about 1/5 of the ring period, 1 to 16 pixels. */
+export function autoBinning(frames: FitFrameInput[]): number {
   let b = 16;
   for (const f of frames) b = Math.min(b, Math.floor(ringPeriodM(f) / (5 * f.setup.camera.pixelPitchM)));
   return Math.max(1, b);
@@ -98,12 +127,13 @@ interface Problem {
   data: Float64Array;
   rim: number[];
   sigma: Float64Array;
-  prior: { index: number; sigma: number } | null;
+  /** Gaussian priors (p[index] − centre)/sigma appended to the residuals. */
+  priors: { index: number; sigma: number; centre: number }[];
 }
 
 function makeWeighted(pr: Problem, jacobianMode: 'exact' | 'centre' = 'centre') {
   const np = parameterCount(pr.layout);
-  const extra = pr.prior ? 1 : 0;
+  const extra = pr.priors.length;
   return {
     nParams: np,
     evaluate(p: Float64Array, withJacobian: boolean) {
@@ -119,10 +149,10 @@ function makeWeighted(pr: Problem, jacobianMode: 'exact' | 'centre' = 'centre') 
           for (let k = 0; k < np; k++) J[i * np + k] = ev.jacobian[i * np + k] * s;
         }
       }
-      if (pr.prior) {
-        r[m] = -p[pr.prior.index] / pr.prior.sigma;
-        if (J) J[m * np + pr.prior.index] = 1 / pr.prior.sigma;
-      }
+      pr.priors.forEach((q, i) => {
+        r[m + i] = -(p[q.index] - q.centre) / q.sigma;
+        if (J) J[(m + i) * np + q.index] = 1 / q.sigma;
+      });
       return { r, J };
     },
   };
@@ -152,6 +182,27 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     }
   }
   if (new Set(terms).size !== terms.length) throw new FitInputError(`a term is listed twice in ${terms.join(',')}`);
+  const discOrders = [...(options.discOrders ?? [])];
+  const orderProblem = checkDiscOrders(discOrders);
+  if (orderProblem) throw new FitInputError(orderProblem);
+  const known = (options.knownAberrations ?? []).filter((t) => t.waves !== 0);
+  for (const t of known) {
+    if (terms.includes(t.j)) throw new FitInputError(`term j = ${t.j} is both fitted and given as known`);
+  }
+  if (terms.length === 0 && discOrders.length === 0) throw new FitInputError('nothing to fit: give Zernike terms or disc edge orders');
+  if (options.freeSourceSize && inputs.some((f) => !Number.isFinite(f.setup.beam.curvatureRadiusM))) {
+    throw new FitInputError('the source size can only be fitted for a diverging or converging beam (finite curvature radius): a collimated beam is not blurred by its source (S·L/G with G = ∞)');
+  }
+  // A calibrated profile replaces the setups' disc shape (turned by each frame's disc rotation).
+  const profile = options.discProfile ?? null;
+  if (profile) {
+    inputs = inputs.map((f) => ({ ...f, setup: { ...f.setup, disc: discWithShape(f.setup.disc, profile.terms, f.discRotationRad ?? 0) } }));
+  }
+  // A fitted source size starts at the stated one, or at a blur of 2 pixels; its margin is kept in the frames' setups.
+  const sourceStartM = options.freeSourceSize
+    ? Math.max(...inputs.map((f) => (f.setup.source.sizeM > 0 ? f.setup.source.sizeM : (2 * f.setup.camera.pixelPitchM * Math.abs(f.setup.beam.curvatureRadiusM)) / f.setup.camera.distanceM)))
+    : 0;
+  if (options.freeSourceSize) inputs = inputs.map((f) => ({ ...f, setup: { ...f.setup, source: { sizeM: 1.5 * sourceStartM } } }));
   const progress = options.onProgress;
   const step = (f: number, stage: string) => {
     if (progress && progress(f, stage) === false) throw cancelledError();
@@ -162,17 +213,27 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     nFrames: inputs.length,
     freeDistance: !!options.freeDistance,
     freeDiscRadius: !!options.freeDiscRadius,
+    discOrders,
+    discFixed: profile?.terms ?? [],
+    freeSourceSize: !!options.freeSourceSize,
+    fixedAberrations: known,
   };
   const np = parameterCount(layout);
+  const shared = sharedParameterIndex(layout);
   const nz = terms.length;
 
   // --- binning and data: a coarse stage (2× binning) finds the basin, the fine stage refines it
   const binning = options.binning === undefined || options.binning === 'auto' ? autoBinning(inputs) : Math.max(1, Math.floor(options.binning));
-  const rimFor = (fr: BinnedFrame[]) => rimSamplesFor(fr, terms.map((j) => ({ j, waves: 0.3 })));
-  const prior =
-    layout.freeDiscRadius
-      ? { index: nz + 4 * inputs.length + (layout.freeDistance ? 1 : 0), sigma: options.discRadiusToleranceM ?? 0.01 * inputs[0].setup.disc.radiusM }
-      : null;
+  const rimFor = (fr: BinnedFrame[]) => rimSamplesFor(fr, [...terms.map((j) => ({ j, waves: 0.3 })), ...known]);
+  const priors: Problem['priors'] = [];
+  if (layout.freeDiscRadius) priors.push({ index: shared.da, sigma: options.discRadiusToleranceM ?? 0.01 * inputs[0].setup.disc.radiusM, centre: 0 });
+  if (layout.freeSourceSize) {
+    // A weak prior keeps a blur below one pixel (which the pixel kernel cannot see) from leaving S undetermined:
+    // centred on a point source, 1σ = the size whose blur equals the spot's first dark ring diameter.
+    const f0 = inputs[0].setup;
+    const spotM = (2 * 2.404825557695773 * f0.camera.distanceM * f0.wavelengthM) / (2 * Math.PI * f0.disc.radiusM);
+    priors.push({ index: shared.source, sigma: (spotM * Math.abs(f0.beam.curvatureRadiusM)) / f0.camera.distanceM, centre: 0 });
+  }
   const makeProblem = (b: number): Problem => {
     const frames = inputs.map((f) => binFrame(f, b));
     for (let f = 0; f < frames.length; f++) {
@@ -184,7 +245,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
       data.set(f.data, o);
       o += f.data.length;
     }
-    return { frames, layout, data, rim: rimFor(frames), sigma: new Float64Array(data.length), prior };
+    return { frames, layout, data, rim: rimFor(frames), sigma: new Float64Array(data.length), priors };
   };
   const fine = makeProblem(binning);
   // The coarse stage keeps ≲ 2500 super-pixels; the defocus search runs on ≲ 900 (it reads mostly the
@@ -194,6 +255,8 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   const coarse = coarseBinning === binning ? fine : makeProblem(coarseBinning);
   const searchBinning = Math.max(coarseBinning, coarsen(900));
   const search = searchBinning === coarseBinning ? coarse : makeProblem(searchBinning);
+  // The coarse stages blur a finite source at super-pixel level (cheaper; they only find the basin).
+  for (const pr of [coarse, search]) if (pr !== fine) pr.frames.forEach((f) => (f.blurLevel = 'super'));
 
   // --- start: centres, coarse search on defocus with scale and background solved linearly
   step(0, 'coarse search');
@@ -204,6 +267,14 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     p[nz + 4 * f + 1] = c[1];
     p[nz + 4 * f + 2] = 1;
   }
+  if (shared.disc >= 0) {
+    discOrders.forEach((n, i) => {
+      const t = profile?.terms.find((q) => q.order === n);
+      p[shared.disc + 2 * i] = t?.cos ?? 0;
+      p[shared.disc + 2 * i + 1] = t?.sin ?? 0;
+    });
+  }
+  if (shared.source >= 0) p[shared.source] = sourceStartM;
   const dataWeights = new Float64Array(search.data.length);
   {
     let row = 0;
@@ -252,8 +323,8 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   };
   const maxIt = options.maxIterations ?? 60;
   let iterationsTotal = 0;
-  const runLM = (pr: Problem, start: Float64Array, from: number, span: number): LMResult => {
-    const res = levenbergMarquardt(makeWeighted(pr), start, {
+  const runLM = (pr: Problem, start: Float64Array, from: number, span: number, jacobianMode: 'exact' | 'centre' = 'centre'): LMResult => {
+    const res = levenbergMarquardt(makeWeighted(pr, jacobianMode), start, {
       maxIterations: maxIt,
       // Steps below 1 % of σ change nothing that matters; the residuals are exact, the step Jacobian is not.
       stepTolerance: 0.01,
@@ -323,6 +394,10 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   if (even.length > 0) {
     const alt = Float64Array.from(sol.params);
     for (const i of even) alt[i] = -alt[i];
+    // the disc's even orders are part of the same rim phase (physics notes §3)
+    discOrders.forEach((n, i) => {
+      if (n % 2 === 0) for (const q of [0, 1]) alt[shared.disc + 2 * i + q] = -alt[shared.disc + 2 * i + q];
+    });
     const altStartC2 = chi2At(coarse, alt);
     // Only pursue it when it starts within reach of the current minimum.
     if (altStartC2 < sol.chi2 + 50 + 0.5 * sol.chi2) {
@@ -351,7 +426,45 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     }
   }
   refreshSigma(fine, sol.params);
-  sol = runLM(fine, sol.params, 0.8, 0.1);
+  sol = runLM(fine, sol.params, 0.8, 0.05);
+  // --- reference-model polish where the fast model's edge error matters
+  const polishMode = options.referencePolish ?? 'auto';
+  const polishWhich = inputs.map(
+    (f, i) => polishMode === 'always' || (polishMode === 'auto' && regionReachesShadowEdge(f, [sol.params[nz + 4 * i], sol.params[nz + 4 * i + 1]])),
+  );
+  let polishNote: string | null = null;
+  if (polishWhich.some(Boolean)) {
+    let rounds = 0;
+    let lastShift = NaN;
+    try {
+      for (rounds = 1; rounds <= 3; rounds++) {
+        step(0.85, 'reference-model check');
+        const corr = referenceCorrections(fine.frames, layout, sol.params, fine.rim, polishWhich, (g) => {
+          if (progress && progress(0.85 + 0.03 * g, 'reference-model check') === false) return false;
+        });
+        fine.frames.forEach((fr, i) => (fr.correction = corr[i]));
+        const before = sol.params;
+        refreshSigma(fine, before);
+        // Exact (pixel-integrated) derivatives here: near the shadow edge the centre-sampled ones are too
+        // rough to find the small step the correction asks for.
+        sol = runLM(fine, before, 0.88, 0.02, 'exact');
+        // Stop when the coefficients moved by less than 0.1σ (σ from this solution's normal matrix).
+        const covP = invertSPD(sol.normalMatrix, np);
+        lastShift = 0;
+        for (let k = 0; k < nz; k++) {
+          const s = covP ? Math.sqrt(Math.max(covP[k * np + k], 1e-300)) : NaN;
+          lastShift = Math.max(lastShift, Math.abs(sol.params[k] - before[k]) / s);
+        }
+        if (!(lastShift > 0.1)) break;
+      }
+      polishNote = `reference-model polish: ${Math.min(rounds, 3)} round(s), last coefficient change ${Number.isFinite(lastShift) ? lastShift.toFixed(2) : 'n/a'}σ`;
+    } catch (err) {
+      if ((err as Error).name === 'CancelledError') throw err;
+      fine.frames.forEach((fr) => (fr.correction = null));
+      refreshSigma(fine, sol.params);
+      polishNote = `the reference-model polish was skipped (${(err as Error).message}); near the shadow edge the uncertainties may be optimistic`;
+    }
+  }
   step(0.9, 'uncertainties');
   // The steps used centre-sampled derivatives; the covariance takes the pixel-integrated ones.
   {
@@ -360,11 +473,14 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   }
 
   // --- statistics
-  const m = data.length + (prior ? 1 : 0);
+  const m = data.length + priors.length;
   const dof = Math.max(1, m - np);
   const chi2PerDof = sol.chi2 / dof;
   const cov = invertSPD(sol.normalMatrix, np);
   const scaleCov = Math.max(1, chi2PerDof);
+  // A calibrated disc profile's own uncertainty adds to the coefficients' (./disc/propagate.ts).
+  const profileCov = profile && cov ? profileCovariance(problem.frames, layout, sol.params, rim, problem.sigma, cov, profile) : null;
+  if (cov && profileCov) for (let k = 0; k < cov.length; k++) cov[k] += profileCov[k] / scaleCov;
   const sigmaOf = (k: number) => (cov ? Math.sqrt(Math.max(cov[k * np + k], 0) * scaleCov) : NaN);
   const names = parameterNames(layout);
   void names;
@@ -434,9 +550,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     );
   }
   if (noiseNote) warnings.push(noiseNote);
-  if (!options.discCalibrated) {
-    warnings.push('the disc shape is not calibrated: astigmatism may include disc ellipticity (measure with the disc turned by 90° to separate them)');
-  }
+  if (polishNote && polishNote.startsWith('the reference')) warnings.push(polishNote);
   // Residual structure: normalised residuals grouped in rings and sectors around the fitted centre.
   const structure = residualStructure(problem, sol.params);
   let trusted = true;
@@ -451,6 +565,24 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     return frames[i].input.regionRadiusPx < 0.95 * shadowRadiusPx;
   });
   if (ringsOnly) warnings.push('the region holds only the inside of the shadow: defocus and coma are weakly determined without the shadow edge');
+  // --- the disc's shape: fitted (and told apart from the beam, or not), calibrated, or neither
+  let discShape: DiscShapeResult | undefined;
+  if (discOrders.length) {
+    const summary = summariseDiscShape(layout, sol.params, cov ? Float64Array.from(cov, (v) => v * scaleCov) : null, inputs, trusted);
+    discShape = summary.shape;
+    warnings.push(...summary.warnings);
+  }
+  const shapeKnown = !!profile || (!!discShape && discOrders.includes(2) && !discShape.degenerate);
+  if (!options.discCalibrated && !shapeKnown && !discShape?.degenerate) {
+    warnings.push('the disc shape is not calibrated: astigmatism may include disc ellipticity (measure with the disc turned by 90° to separate them)');
+  }
+  const sourceSizeM = shared.source >= 0 ? Math.abs(sol.params[shared.source]) : inputs[0].setup.source.sizeM;
+  const source = {
+    sizeM: sourceSizeM,
+    sigmaSizeM: shared.source >= 0 ? sigmaOf(shared.source) : null,
+    fitted: shared.source >= 0,
+    blurM: inputs.map((f) => sourceBlurDiameterM(f.setup, shared.source >= 0 ? sourceSizeM : f.setup.source.sizeM)),
+  };
 
   const termination: Termination = sol.termination;
   const centers: [number, number][] = inputs.map((_, f) => [sol.params[nz + 4 * f], sol.params[nz + 4 * f + 1]]);
@@ -489,16 +621,25 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
       freeDistance: layout.freeDistance,
       freeDiscRadius: layout.freeDiscRadius,
       rimSamples: rim,
+      referencePolish: polishNote,
       ...(layout.freeDistance
         ? { distanceOffsetM: sol.params[nz + 4 * inputs.length], sigmaDistanceOffsetM: sigmaOf(nz + 4 * inputs.length) }
         : {}),
       ...(layout.freeDiscRadius
-        ? { discRadiusOffsetM: sol.params[np - 1], sigmaDiscRadiusOffsetM: sigmaOf(np - 1) }
+        ? { discRadiusOffsetM: sol.params[shared.da], sigmaDiscRadiusOffsetM: sigmaOf(shared.da) }
         : {}),
+      ...(discOrders.length ? { discOrders } : {}),
+      ...(profile ? { discProfileUncertaintyIncluded: !!profileCov } : {}),
+      ...(inputs.some((f) => f.discRotationRad) ? { discRotationsRad: inputs.map((f) => f.discRotationRad ?? 0) } : {}),
+      ...(known.length ? { knownAberrations: known } : {}),
+      ...(layout.freeSourceSize ? { freeSourceSize: true } : {}),
       noiseModel: inputs.map((f) => ({ readNoiseCounts: f.readNoiseCounts, gainCountsPerElectron: f.gainCountsPerElectron, frames: f.frameCount, darks: f.darkCount })),
     },
     warnings,
     trusted,
+    disc: profile ? { id: profile.id, name: profile.name, calibratedAt: profile.calibratedAt } : null,
+    ...(discShape ? { discShape } : {}),
+    ...(source.sizeM > 0 || source.fitted ? { source } : {}),
   };
 }
 

@@ -5,10 +5,15 @@
  *
  * Parameters, in order: the Zernike coefficients (waves), then per frame [centre x (m), centre y (m),
  * scale (counts per unit relative intensity), background (counts)], then optionally a camera-distance
- * offset shared by all frames (m) and a disc-radius offset (m).
+ * offset shared by all frames (m) and a disc-radius offset (m), then optionally the disc's edge-shape
+ * coefficients (two per freed order, disc's own frame; ./disc/shape.ts) and the source diameter S (m).
+ * Known aberrations (`fixedAberrations`) enter the model without being fitted. A finite source blurs each
+ * frame by S·L/G (./sourceBlur.ts).
  */
 import type { BenchSetup, ZernikeTerm } from '../setup/types.ts';
 import { fastField, chooseRimSamples } from '../optics/fast/rimModel.ts';
+import { discShapeFieldDerivatives, discShapeParameterNames, discWithShape, shapeTermsFromParams, type DiscShapeTerm } from './disc/shape.ts';
+import { blurredGrid, sourceBlurDiameterM, type BlurLevel } from './sourceBlur.ts';
 
 export interface FitFrameInput {
   /** Setup of this frame (its own camera distance, disc angle). */
@@ -29,6 +34,12 @@ export interface FitFrameInput {
   /** Region of interest: centre (pixels, may be fractional) and radius (pixels). */
   regionCenterPx: [number, number];
   regionRadiusPx: number;
+  /**
+   * How far the disc is turned in this frame (rad, counter-clockwise in the lab frame, looking downstream)
+   * relative to its own frame: a fitted or calibrated disc shape (./disc/shape.ts) turns with it; the beam's
+   * aberrations do not. Default 0. A shape written in the frame's setup is that frame's lab-frame shape.
+   */
+  discRotationRad?: number;
 }
 
 export interface BinnedFrame {
@@ -51,6 +62,13 @@ export interface BinnedFrame {
    * border (xs, ys hold W+4 and H+4 centres) and the separable 5-tap pixel-average filter PIXEL_FILTER.
    */
   mode: 'gl2' | 'stencil';
+  /**
+   * A correction added to the model's relative intensity per used super-pixel, held constant during a fit:
+   * the reference model minus the fast model at a previous solution (./referencePolish.ts), or null.
+   */
+  correction?: Float64Array | null;
+  /** How a finite source's blur is modelled (./sourceBlur.ts); default 'pixel'. */
+  blurLevel?: BlurLevel;
 }
 
 /**
@@ -122,10 +140,18 @@ export interface ModelLayout {
   nFrames: number;
   freeDistance: boolean;
   freeDiscRadius: boolean;
+  /** Disc edge orders (2, 3, 4) whose shape coefficients are fitted, shared by all frames (./disc/shape.ts). */
+  discOrders?: readonly number[];
+  /** Known disc shape (disc's own frame) for the orders not fitted, when `discOrders` is not empty. */
+  discFixed?: readonly DiscShapeTerm[];
+  /** Fit the source diameter S (m), shared by all frames; the blur on the camera is |S|·L/G. */
+  freeSourceSize?: boolean;
+  /** Known aberrations added to the fitted ones (not fitted; none of `terms`). */
+  fixedAberrations?: readonly ZernikeTerm[];
 }
 
 export function parameterCount(l: ModelLayout): number {
-  return l.terms.length + 4 * l.nFrames + (l.freeDistance ? 1 : 0) + (l.freeDiscRadius ? 1 : 0);
+  return l.terms.length + 4 * l.nFrames + (l.freeDistance ? 1 : 0) + (l.freeDiscRadius ? 1 : 0) + 2 * (l.discOrders?.length ?? 0) + (l.freeSourceSize ? 1 : 0);
 }
 
 export function parameterNames(l: ModelLayout): string[] {
@@ -133,7 +159,41 @@ export function parameterNames(l: ModelLayout): string[] {
   for (let f = 0; f < l.nFrames; f++) names.push(`cx${f}`, `cy${f}`, `scale${f}`, `bg${f}`);
   if (l.freeDistance) names.push('dL');
   if (l.freeDiscRadius) names.push('da');
+  names.push(...discShapeParameterNames(l.discOrders ?? []));
+  if (l.freeSourceSize) names.push('S');
   return names;
+}
+
+/** Indices of the shared parameters after the per-frame ones (−1 when not in the layout). */
+export function sharedParameterIndex(l: ModelLayout): { dL: number; da: number; disc: number; source: number } {
+  let k = l.terms.length + 4 * l.nFrames;
+  const dL = l.freeDistance ? k++ : -1;
+  const da = l.freeDiscRadius ? k++ : -1;
+  const nd = l.discOrders?.length ?? 0;
+  const disc = nd > 0 ? k : -1;
+  k += 2 * nd;
+  const source = l.freeSourceSize ? k++ : -1;
+  return { dL, da, disc, source };
+}
+
+/** The aberrations the model uses at p: the fitted terms and the known ones. */
+export function modelAberrations(l: ModelLayout, p: ArrayLike<number>): ZernikeTerm[] {
+  return [...l.terms.map((j, k) => ({ j, waves: p[k] })), ...(l.fixedAberrations ?? [])];
+}
+
+/**
+ * The setup a frame is modelled with at p: the shared distance and disc-radius offsets, the fitted disc
+ * shape turned by the frame's disc rotation, and the fitted source size.
+ */
+export function modelSetup(input: FitFrameInput, l: ModelLayout, p: ArrayLike<number>): BenchSetup {
+  const ix = sharedParameterIndex(l);
+  let setup = offsetSetup(input.setup, ix.dL >= 0 ? p[ix.dL] : 0, ix.da >= 0 ? p[ix.da] : 0);
+  if (ix.disc >= 0) {
+    const terms = shapeTermsFromParams(l.discOrders!, p, ix.disc, l.discFixed ?? []);
+    setup = { ...setup, disc: discWithShape(setup.disc, terms, input.discRotationRad ?? 0) };
+  }
+  if (ix.source >= 0) setup = { ...setup, source: { sizeM: Math.abs(p[ix.source]) } };
+  return setup;
 }
 
 /** Setup with the shared distance and disc-radius offsets applied. */
@@ -178,19 +238,23 @@ export function evaluateModel(
   const model = new Float64Array(total);
   const intensity = new Float64Array(total);
   const jac = withJacobian ? new Float64Array(total * np) : null;
-  const aberrations: ZernikeTerm[] = layout.terms.map((j, k) => ({ j, waves: p[k] }));
-  let extra = nz + 4 * layout.nFrames;
-  const dL = layout.freeDistance ? p[extra++] : 0;
-  const da = layout.freeDiscRadius ? p[extra++] : 0;
+  const aberrations: ZernikeTerm[] = modelAberrations(layout, p);
+  const shared = sharedParameterIndex(layout);
+  const discOrders = layout.discOrders ?? [];
   let row = 0;
   for (let f = 0; f < frames.length; f++) {
     const fr = frames[f];
     const base = nz + 4 * f;
     const cx = p[base], cy = p[base + 1], scale = p[base + 2], bg = p[base + 3];
-    const setup = offsetSetup(fr.input.setup, dL, da);
+    const setup = modelSetup(fr.input, layout, p);
+    const rotation = fr.input.discRotationRad ?? 0;
+    // Finite source: blur diameter S·L/G (S fitted or from the setup); the sample grid grows by its margin.
+    const blurM = sourceBlurDiameterM(setup);
+    const sourceStep = shared.source >= 0 ? 0.02 * setup.camera.pixelPitchM : 0;
+    const grid = blurM > 0 || shared.source >= 0 ? blurredGrid(fr, blurM, fr.blurLevel ?? 'pixel', blurM + 2 * sourceStep) : null;
     const centreDerivs: Float64Array[] = [];
-    const xs = Float64Array.from(fr.xs, (v) => v - cx);
-    const ys = Float64Array.from(fr.ys, (v) => v - cy);
+    const xs = Float64Array.from(grid ? grid.xs : fr.xs, (v) => v - cx);
+    const ys = Float64Array.from(grid ? grid.ys : fr.ys, (v) => v - cy);
     const centreJacobian = withJacobian && jacobianMode === 'centre';
     const field = fastField(setup, aberrations, xs, ys, {
       nPhi: rimSamples[f],
@@ -198,14 +262,30 @@ export function evaluateModel(
       centerDerivatives: withJacobian && !centreJacobian,
     });
     const nx = xs.length;
-    if (centreJacobian) {
+    if (centreJacobian && grid) {
+      // Blurred frame: derivatives at the super-pixel centres (with margin), blurred at super-pixel level.
+      const cxs = Float64Array.from(grid.centreXs, (v) => v - cx);
+      const cys = Float64Array.from(grid.centreYs, (v) => v - cy);
+      const cf = fastField(setup, aberrations, cxs, cys, { nPhi: rimSamples[f], derivativeTerms: layout.terms, centerDerivatives: true });
+      const sd = discOrders.length ? discShapeFieldDerivatives(setup, aberrations, cxs, cys, rimSamples[f], discOrders, rotation) : null;
+      const dRe = sd ? [...cf.dRe, ...sd.dRe] : cf.dRe;
+      const dIm = sd ? [...cf.dIm, ...sd.dIm] : cf.dIm;
+      for (let q = 0; q < dRe.length; q++) {
+        const d = new Float64Array(cf.re.length);
+        for (let k = 0; k < d.length; k++) d[k] = 2 * (cf.re[k] * dRe[q][k] + cf.im[k] * dIm[q][k]);
+        centreDerivs.push(grid.reduceCentre(d));
+      }
+    } else if (centreJacobian) {
       // Derivatives on the super-pixel centres (for 'stencil' frames: the pixel centres without the border).
       const cxs = fr.mode === 'stencil' ? xs.subarray(2, xs.length - 2) : Float64Array.from({ length: fr.nbx }, (_, i) => 0.5 * (xs[2 * i] + xs[2 * i + 1]));
       const cys = fr.mode === 'stencil' ? ys.subarray(2, ys.length - 2) : Float64Array.from({ length: fr.nby }, (_, i) => 0.5 * (ys[2 * i] + ys[2 * i + 1]));
       const cf = fastField(setup, aberrations, cxs, cys, { nPhi: rimSamples[f], derivativeTerms: layout.terms, centerDerivatives: true });
+      const sd = discOrders.length ? discShapeFieldDerivatives(setup, aberrations, cxs, cys, rimSamples[f], discOrders, rotation) : null;
+      const dRe = sd ? [...cf.dRe, ...sd.dRe] : cf.dRe;
+      const dIm = sd ? [...cf.dIm, ...sd.dIm] : cf.dIm;
       const cnx = cxs.length;
-      for (let q = 0; q < nz + 2; q++) {
-        const dr = cf.dRe[q], di = cf.dIm[q];
+      for (let q = 0; q < dRe.length; q++) {
+        const dr = dRe[q], di = dIm[q];
         // write the centre derivative of intensity into field.dRe[q] slots later read by the reducer below
         const d = new Float64Array(fr.used.length);
         for (let u = 0; u < fr.used.length; u++) {
@@ -230,12 +310,33 @@ export function evaluateModel(
         for (let k = 0; k < ns; k++) d[k] = 2 * (field.re[k] * dr[k] + field.im[k] * di[k]);
         dIs.push(d);
       }
+      if (discOrders.length) {
+        const sd = discShapeFieldDerivatives(setup, aberrations, xs, ys, rimSamples[f], discOrders, rotation);
+        for (let q = 0; q < sd.dRe.length; q++) {
+          const d = new Float64Array(ns);
+          const dr = sd.dRe[q], di = sd.dIm[q];
+          for (let k = 0; k < ns; k++) d[k] = 2 * (field.re[k] * dr[k] + field.im[k] * di[k]);
+          dIs.push(d);
+        }
+      }
     }
-    const reduce = fr.mode === 'stencil' ? stencilReducer(fr) : gl2Reducer(fr, nx);
+    const reduce = grid ? (v: Float64Array) => grid.reduce(v) : fr.mode === 'stencil' ? stencilReducer(fr) : gl2Reducer(fr, nx);
     const Iu = reduce(Is);
     const dIu = centreJacobian ? centreDerivs : dIs.map(reduce);
+    if (jac && grid && shared.source >= 0) {
+      // Source size: central difference of the blur alone (the coherent intensity does not depend on S);
+      // D = |S|·L/G, so ∂/∂S = sign(S)·(L/G)·∂/∂D.
+      const dDdS = (Math.sign(p[shared.source]) || 1) * (setup.camera.distanceM / Math.abs(setup.beam.curvatureRadiusM));
+      const lo = Math.max(0, blurM - sourceStep);
+      const plus = grid.reduce(Is, blurM + sourceStep);
+      const minus = grid.reduce(Is, lo);
+      const d = new Float64Array(fr.used.length);
+      for (let u = 0; u < d.length; u++) d[u] = ((plus[u] - minus[u]) / (blurM + sourceStep - lo)) * dDdS;
+      dIu.push(d);
+    }
+    const corr = fr.correction ?? null;
     for (let u = 0; u < fr.used.length; u++) {
-      const I = Iu[u];
+      const I = corr ? Iu[u] + corr[u] : Iu[u];
       intensity[row] = I;
       model[row] = scale * I + bg;
       if (jac) {
@@ -246,6 +347,9 @@ export function evaluateModel(
         jac[o + base + 1] = -scale * dIu[nz + 1][u];
         jac[o + base + 2] = I;
         jac[o + base + 3] = 1;
+        // disc shape (and source size) columns follow the centre derivatives
+        for (let q = 0; q < 2 * discOrders.length; q++) jac[o + shared.disc + q] = scale * dIu[nz + 2 + q][u];
+        if (shared.source >= 0 && grid) jac[o + shared.source] = scale * dIu[nz + 2 + 2 * discOrders.length][u];
       }
       row++;
     }
@@ -272,7 +376,7 @@ export function evaluateModel(
 }
 
 /** Mean of the 2×2 Gauss–Legendre samples of each used super-pixel. */
-function gl2Reducer(fr: BinnedFrame, nx: number): (v: Float64Array) => Float64Array {
+export function gl2Reducer(fr: Pick<BinnedFrame, 'used' | 'nbx'>, nx: number): (v: Float64Array) => Float64Array {
   return (v) => {
     const out = new Float64Array(fr.used.length);
     for (let u = 0; u < fr.used.length; u++) {
@@ -287,7 +391,7 @@ function gl2Reducer(fr: BinnedFrame, nx: number): (v: Float64Array) => Float64Ar
 }
 
 /** The separable 5-tap pixel-average filter on the bordered pixel-centre grid, read at the used pixels. */
-function stencilReducer(fr: BinnedFrame): (v: Float64Array) => Float64Array {
+export function stencilReducer(fr: Pick<BinnedFrame, 'used' | 'nbx' | 'xs' | 'ys'>): (v: Float64Array) => Float64Array {
   const gx = fr.xs.length;
   const gy = fr.ys.length;
   const w = PIXEL_FILTER;
@@ -319,7 +423,9 @@ export function rimSamplesFor(frames: BinnedFrame[], terms: ZernikeTerm[]): numb
     // Only the region's circle matters (pixels outside it are computed but not used): its radius around
     // the pattern, with room for the stencil border, binning and centre moves during the fit.
     const p = f.input.setup.camera.pixelPitchM;
-    const radiusM = (f.input.regionRadiusPx + 2 * f.binning + 3) * p * 1.05 + 20e-6;
+    // A finite source widens the computed grid by the blur's radius (with room for a fitted size to grow).
+    const blurRadiusM = 0.75 * sourceBlurDiameterM(f.input.setup);
+    const radiusM = (f.input.regionRadiusPx + 2 * f.binning + 3) * p * 1.05 + 20e-6 + blurRadiusM;
     return chooseRimSamples(f.input.setup, terms, f.xs, f.ys, radiusM);
   });
 }

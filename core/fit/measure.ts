@@ -14,6 +14,8 @@ export interface FrameSet {
   setup: BenchSetup;
   /** Prepared frames; when `located` and `region` are already known (app/services/frames.ts) they are used as they are. */
   prepared: PreparedFrame & { located?: LocatedPattern; region?: AnalysisRegion };
+  /** How far the disc is turned in these frames, rad (counter-clockwise, lab frame); see FitFrameInput. */
+  discRotationRad?: number;
 }
 
 export interface MeasureOptions extends Omit<FitOptions, 'initialCentersM'> {
@@ -27,7 +29,7 @@ export function measureBeam(sets: FrameSet[], options: MeasureOptions = {}): Fit
   const inputs: FitFrameInput[] = [];
   const centers: [number, number][] = [];
   const notes: string[] = [];
-  for (const { setup, prepared } of sets) {
+  for (const { setup, prepared, discRotationRad } of sets) {
     const expected = expectedPattern(setup);
     const known = !!prepared.located;
     const located = prepared.located ?? locatePattern(prepared, expected);
@@ -49,6 +51,7 @@ export function measureBeam(sets: FrameSet[], options: MeasureOptions = {}): Fit
       gainCountsPerElectron: options.gainCountsPerElectron ?? 1,
       regionCenterPx: region.centerPx,
       regionRadiusPx: region.radiusPx,
+      discRotationRad,
     });
     notes.push(...prepared.warnings);
     if (!known) notes.push(...located.warnings.map((w) => `${prepared.label}: ${w}`));

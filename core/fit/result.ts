@@ -3,6 +3,8 @@
  * the logbook. Other tools rely on it: keep it stable; add fields, never change or remove one.
  * Lengths are metres unless the name says otherwise; coefficients are over `zernike.radius_m`.
  */
+import type { DiscShapeResult } from './disc/profile.ts';
+
 export const RESULT_FORMAT = 'shadowfront-result/1';
 
 export type Termination = 'converged' | 'iteration limit' | 'stalled' | 'non-finite' | 'cancelled';
@@ -55,4 +57,16 @@ export interface FitResult {
   warnings: string[];
   /** False when χ² and the residual structure say the fit stopped in a wrong minimum: do not use the coefficients. */
   trusted: boolean;
+  /**
+   * The calibrated disc profile the fit used (a disc of the logbook's disc library, `id` null for a profile
+   * from elsewhere), or null when none was used. Absent in results written before it existed.
+   */
+  disc?: { id: number | null; name: string; calibratedAt: string } | null;
+  /** The disc's edge shape when it was fitted with the beam (disc calibration, core/fit/disc); absent otherwise. */
+  discShape?: DiscShapeResult;
+  /**
+   * A finite source (setup `source.size` > 0, or fitted): its diameter S with 1σ when fitted (else null), and
+   * the blur S·L/G on each frame, m. Absent for a point source.
+   */
+  source?: { sizeM: number; sigmaSizeM: number | null; fitted: boolean; blurM: number[] };
 }

@@ -17,6 +17,14 @@ Options:
   --free-distance         free the camera distance (degenerate with defocus unless frames at two
                           distances are given)
   --free-disc <tolerance> free the disc radius within a tolerance, e.g. "5 um"
+  --disc <name or id>     use the calibrated shape of this disc from the logbook's disc library
+                          (see "shadowfront disc list"); the result records which calibration
+  --disc-angle <angle>    how far the disc is turned from its calibrated position, e.g. "90 deg"
+  --db <file>             the logbook holding the disc library (default: $SHADOWFRONT_DB, else the
+                          user data folder)
+  --source-size <length>  diameter of the source (fibre core, pinhole), e.g. "25 um", replacing the
+                          setup's source.size; the model blurs each frame by S·L/G
+  --free-source-size      fit the source size (a diverging or converging beam only)
   --binning <n|auto>      super-pixel size in camera pixels (default auto: about 1/5 of the ring period)
   --gain <counts/e>       camera gain for the shot-noise model (default 1)
   --read-noise <counts>   read noise per frame (default: estimated from the frames)
@@ -66,6 +74,13 @@ export function formatResult(r: FitResult): string {
   if (st.discRadiusOffsetM !== undefined) {
     lines.push(`disc radius offset (fitted)                                ${(st.discRadiusOffsetM * 1e6).toFixed(2)} ± ${((st.sigmaDiscRadiusOffsetM ?? NaN) * 1e6).toFixed(2)} µm`);
   }
+  if (r.disc) lines.push(`disc shape                                                 calibrated: disc${r.disc.id !== null ? ` #${r.disc.id}` : ''} "${r.disc.name}", calibrated ${r.disc.calibratedAt}`);
+  if (r.source) {
+    const blur = r.source.blurM.map((b) => `${(b * 1e6).toFixed(1)} µm`).join(', ');
+    lines.push(
+      `source size${r.source.fitted ? ' (fitted)' : ''}                                        ${(r.source.sizeM * 1e6).toFixed(2)}${r.source.sigmaSizeM !== null ? ` ± ${(r.source.sigmaSizeM * 1e6).toFixed(2)}` : ''} µm (blur S·L/G on the camera: ${blur})`,
+    );
+  }
   lines.push(`χ²/dof ${r.chi2PerDof.toFixed(3)} (${r.dof} dof), ${r.iterations} iterations, ${r.termination}, ${(r.elapsedMs / 1000).toFixed(2)} s`);
   r.regions.forEach((g, i) =>
     lines.push(`region${r.regions.length > 1 ? ` ${i + 1}` : ''}: circle of radius ${g.radiusPx.toFixed(1)} px around column ${g.centerPx[0].toFixed(1)}, row ${g.centerPx[1].toFixed(1)}, super-pixels of ${g.binning}×${g.binning}`),
@@ -89,6 +104,11 @@ export async function fitCommand(argv: string[]): Promise<number> {
       also: { type: 'string', multiple: true, default: [] },
       'free-distance': { type: 'boolean', default: false },
       'free-disc': { type: 'string' },
+      disc: { type: 'string' },
+      'disc-angle': { type: 'string' },
+      db: { type: 'string' },
+      'source-size': { type: 'string' },
+      'free-source-size': { type: 'boolean', default: false },
       binning: { type: 'string', default: 'auto' },
       gain: { type: 'string' },
       'read-noise': { type: 'string' },
@@ -120,10 +140,27 @@ export async function fitCommand(argv: string[]): Promise<number> {
       throw new UsageError(`--free-disc: ${(e as Error).message}`);
     }
   }
+  let discAngleRad: number | undefined;
+  let sourceSizeM: number | undefined;
+  if (values['disc-angle'] !== undefined || values['source-size'] !== undefined) {
+    const { parseAngle, parseLength } = await import('../../../core/units/parseQuantity.ts');
+    try {
+      if (values['disc-angle'] !== undefined) discAngleRad = parseAngle(values['disc-angle']);
+    } catch (e) {
+      throw new UsageError(`--disc-angle: ${(e as Error).message}`);
+    }
+    try {
+      if (values['source-size'] !== undefined) sourceSizeM = parseLength(values['source-size']);
+    } catch (e) {
+      throw new UsageError(`--source-size: ${(e as Error).message}`);
+    }
+    if (sourceSizeM !== undefined && !(sourceSizeM >= 0)) throw new UsageError(`--source-size must be a length ≥ 0, not "${values['source-size']}"`);
+  }
+  if (discAngleRad !== undefined && values.disc === undefined) throw new UsageError('--disc-angle turns a calibrated disc shape: give --disc <name or id> too');
   const extraSets = (values.also as string[]).map((spec) => {
     const eq = spec.indexOf('=');
     if (eq <= 0) throw new UsageError(`--also must look like setup.json=frame1.png,frame2.png, not "${spec}"`);
-    return { setupPath: spec.slice(0, eq), framePaths: spec.slice(eq + 1).split(',').filter(Boolean) };
+    return { setupPath: spec.slice(0, eq), framePaths: spec.slice(eq + 1).split(',').filter(Boolean), discRotationRad: discAngleRad };
   });
   const bar = values.json ? () => {} : progressPrinter('fitting');
   const result = await runFit({
@@ -132,9 +169,14 @@ export async function fitCommand(argv: string[]): Promise<number> {
     setupPath: values.setup,
     terms,
     extraSets,
+    discRotationRad: discAngleRad,
+    disc: values.disc,
+    logbookPath: values.db,
+    sourceSizeM,
     options: {
       binning,
       freeDistance: values['free-distance'],
+      freeSourceSize: values['free-source-size'],
       freeDiscRadius: discTolM !== undefined,
       discRadiusToleranceM: discTolM,
       gainCountsPerElectron: num('gain', values.gain),

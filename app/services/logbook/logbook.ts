@@ -586,6 +586,15 @@ export class Logbook {
     return r ? this.discFromRow(r) : undefined;
   }
 
+  /** Replace a disc's calibration JSON (e.g. a new disc profile); the rest of the record is kept. */
+  setDiscCalibration(disc: string | number, calibration: unknown): Disc {
+    this.assertWritable();
+    const cur = this.getDisc(disc);
+    if (!cur) throw new LogbookDataError(`no disc ${typeof disc === 'number' ? `#${disc}` : `named "${disc}"`} in this logbook`);
+    this.batch(() => this.run('UPDATE discs SET calibration_json = ? WHERE id = ?', [calibration === undefined || calibration === null ? null : JSON.stringify(calibration), cur.id]));
+    return this.getDisc(cur.id)!;
+  }
+
   listDiscs(): Disc[] {
     this.assertOpen();
     return this.all('SELECT * FROM discs ORDER BY name COLLATE NOCASE').map((r) => this.discFromRow(r));
