@@ -32,6 +32,13 @@ const COMMANDS: Record<string, { load: () => Promise<CommandModule>; summary: st
     },
     summary: 'print the derived figures of a bench setup',
   },
+  plan: {
+    load: async () => {
+      const m = await import('./commands/plan.ts');
+      return { run: m.planCommand, usage: m.PLAN_USAGE };
+    },
+    summary: 'plan the bench: rank candidate discs and camera distances by predicted σ',
+  },
   beam: {
     load: async () => {
       const m = await import('./commands/beam.ts');
@@ -52,6 +59,20 @@ const COMMANDS: Record<string, { load: () => Promise<CommandModule>; summary: st
       return { run: m.logCommand, usage: m.LOG_USAGE };
     },
     summary: 'the beam-health logbook: log, compare, trend, export, report',
+  },
+  disc: {
+    load: async () => {
+      const m = await import('./commands/disc.ts');
+      return { run: m.discCommand, usage: m.DISC_USAGE };
+    },
+    summary: "calibrate a disc's shape and keep it in the disc library",
+  },
+  serve: {
+    load: async () => {
+      const m = await import('./commands/serve.ts');
+      return { run: m.serveCommand, usage: m.SERVE_USAGE };
+    },
+    summary: 'start the local web mode (the interface in a browser, at 127.0.0.1)',
   },
 };
 

@@ -38,6 +38,9 @@ export function loadFramesForFit(framePaths: string[], darkPaths: string[], setu
   return { ...prepared, warnings: [...prepared.warnings, ...located.warnings.map((w) => `${prepared.label}: ${w}`)], expected, located, region };
 }
 
+/** The same preparation for frames handed over as bytes (the desktop app and the local web mode). */
+export { loadFramesFromBytes, regionFromOverride, type RegionOverride } from './app/prepareFromBytes.ts';
+
 /**
  * Read a bench setup from a setup file, or the setup part of a scene file.
  * @throws FileProblem or SetupFieldError naming the file.

@@ -77,8 +77,10 @@ export interface DerivedFigures {
   spotDiameterPx: number;
   /** Shadow diameter on the sensor against the sensor's smaller side, pixels. */
   shadowDiameterPx: number;
-  sensorMinSidePx: number;
-  shadowFits: boolean;
+  /** Null when the setup gives no camera.sensorSize. */
+  sensorMinSidePx: number | null;
+  /** Null when the setup gives no camera.sensorSize. */
+  shadowFits: boolean | null;
   notes: string[];
 }
 

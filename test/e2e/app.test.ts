@@ -87,6 +87,8 @@ function parsePm(text: string): { value: number; sigma: number; halfDigit: numbe
       logbookPath: join(logbookDir, logbookSrc.slice(dirname(logbookSrc).length + 1)),
       demo: true,
       staticDir: join(ROOT, 'out/renderer'),
+      // load the fit worker while the browser starts, so the first fit does not wait for it
+      service: { prewarm: true },
     });
     context = await launchChromium(join(tmp, 'profile'));
     page = context.pages()[0] ?? (await context.newPage());
