@@ -36,6 +36,9 @@ import { blankSetup, demoFiles, demoSetup, setupPart } from './app/demo.ts';
 import { wavefrontPlane, type AssetLimits } from './app/outcome.ts';
 import { examplePlanJson } from './planService.ts';
 import type { PlanReport } from '../../core/plan/types.ts';
+import { parsePlan } from '../../core/plan/parsePlan.ts';
+import { parseDiscProfile } from '../../core/fit/disc/profile.ts';
+import { discJobPayload } from './app/disc.ts';
 
 export interface AppServiceOptions {
   /** Where the app keeps its own small files (safety.json, presets.json). */
@@ -92,6 +95,7 @@ export function derivedFigures(setup: BenchSetup): DerivedFigures {
     fresnelNumber: f.fresnelNumber,
     zoneWidthM: f.zoneWidthM,
     rimToleranceM: f.rimToleranceM,
+    discRadiusM: setup.disc.radiusM,
     spotDiameterPx: f.spotDiameterPx,
     shadowDiameterPx: f.shadowDiameterPx,
     sensorMinSidePx: f.sensorMinSidePx,
@@ -203,6 +207,16 @@ export function createAppService(options: AppServiceOptions): AppService {
           const setup = parseSetup(req.setup, 'bench setup');
           return { id: jobs.start('simulate', { request: req, setup }) };
         }),
+      startPlan: (req) =>
+        run(() => {
+          parsePlan(req.plan, 'bench plan'); // a bad field is reported at once, not from the worker
+          return { id: jobs.start('plan', { plan: req.plan }) };
+        }),
+      startDiscCalibration: (req) =>
+        run(() => {
+          const setup = parseSetup(setupPart(req.setup), 'bench setup');
+          return { id: jobs.start('disc', discJobPayload(req, setup)) };
+        }),
       status: (req) => run(() => jobs.status(req.id)),
       cancel: (req) => run(() => jobs.cancel(req.id)),
     },
@@ -210,6 +224,34 @@ export function createAppService(options: AppServiceOptions): AppService {
       info: () => run(() => logbook.info()),
       assets: () => run(() => withReader([], (lb) => lb.listAssets())),
       discs: () => run(() => withReader([], (lb) => lb.listDiscs())),
+      saveDiscProfile: (req) =>
+        run(async () => {
+          const name = req.name?.trim();
+          if (!name) throw new AppProblem('invalid-input', 'Name the disc to store its calibration under (a new name adds the disc to the library).', undefined, 'name');
+          const profile = parseDiscProfile(req.profile, 'disc calibration');
+          if (!profile.trusted) {
+            throw new AppProblem(
+              'untrusted',
+              `This calibration is not trustworthy (${profile.degenerate ? 'the disc shape could not be told apart from the beam' : 'the fit is suspect'}), so it was not stored. Take frames with the disc turned by 90°, or declare the beam ideal, and calibrate again.`,
+              undefined,
+              'profile',
+            );
+          }
+          const { storeDiscProfile, discKey } = await import('./discService.ts');
+          return logbook.write('disc calibration from the app', (lb) => {
+            const existing = lb.getDisc(discKey(name));
+            if (existing && existing.calibration !== null && existing.calibration !== undefined && !req.replace) {
+              const when = (existing.calibration as { calibratedAt?: unknown }).calibratedAt;
+              throw new AppProblem(
+                'exists',
+                `Disc #${existing.id} "${existing.name}" already has a calibration${typeof when === 'string' ? ` (made ${when.slice(0, 10)})` : ''}. Nothing was changed: confirm to replace it, or save this one under another name.`,
+                undefined,
+                'name',
+              );
+            }
+            return storeDiscProfile(lb, name, profile, { replace: req.replace === true, notes: req.notes });
+          });
+        }),
       measurements: (req) => run(async () => {
         const lb = await logbook.reader();
         return lb ? selection(lb, req) : [];

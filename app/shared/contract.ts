@@ -20,6 +20,7 @@ import type { Asset, Disc, MeasurementRecord, MeasurementSummary } from '../../c
 import type { Comparison } from '../../core/logbook/compare.ts';
 import type { Trend } from '../../core/logbook/trend.ts';
 import type { PlanReport } from '../../core/plan/types.ts';
+import type { DiscCalibration } from '../../core/fit/disc/calibrate.ts';
 
 // ---------------------------------------------------------------- common
 
@@ -73,6 +74,8 @@ export interface DerivedFigures {
   /** Edge Fresnel-zone width Δr = λL'/(2a), m, and the rim tolerance from the 10 % rule. */
   zoneWidthM: number;
   rimToleranceM: number;
+  /** Nominal disc radius a, m (from the setup's disc diameter). */
+  discRadiusM: number;
   /** First dark ring diameter of the spot, on the sensor, pixels. */
   spotDiameterPx: number;
   /** Shadow diameter on the sensor against the sensor's smaller side, pixels. */
@@ -169,7 +172,46 @@ export interface SimulateOutcome {
   notes: string[];
 }
 
-export type JobKind = 'fit' | 'simulate';
+/** Frames taken with the disc turned to one angle in its holder. */
+export interface DiscAngleFrames {
+  /**
+   * The disc's rotation for these frames, counter-clockwise seen from the laser looking downstream: a plain
+   * number is degrees ("90"), or text with a unit ("1.5708 rad"); the service parses it.
+   */
+  angle: string;
+  frames: FileBlob[];
+  darks?: FileBlob[];
+}
+
+/** A disc calibration (physics notes §3): frames at several disc angles, the beam fitted with the disc or declared ideal. */
+export interface DiscCalibrationRequest {
+  /** The bench setup the frames were taken with (a setup, or a scene whose setup part is used). */
+  setup: SetupJson;
+  /** One entry per disc angle; at least two angles (e.g. 0° and 90°) when the beam is fitted. */
+  sets: DiscAngleFrames[];
+  /** 'fit': the beam's aberrations are fitted with the disc; 'ideal': a reference beam without aberrations. */
+  beam: 'fit' | 'ideal';
+  /** Also fit the edge harmonics of orders 3 and 4 (default: ellipticity and axis only). */
+  harmonics?: boolean;
+  /** Beam terms fitted with the disc (ANSI; default 3, 4, 5, 7, 8 when the beam is fitted, none when ideal). */
+  terms?: number[];
+}
+
+/** What a finished disc-calibration job returns: the profile to store, the fit behind it, trust and warnings. */
+export type DiscCalibrationOutcome = DiscCalibration;
+
+export interface SaveDiscProfileRequest {
+  /** A new disc's name, or an existing disc's name (or "#id"). */
+  name: string;
+  /** The `profile` of a DiscCalibrationOutcome ("shadowfront-disc-profile/1"). */
+  profile: Record<string, unknown>;
+  /** Replace the disc's existing calibration; without it an existing calibration is never overwritten. */
+  replace?: boolean;
+  /** Notes for a new disc. */
+  notes?: string;
+}
+
+export type JobKind = 'fit' | 'simulate' | 'plan' | 'disc';
 
 export interface JobStatus {
   id: string;
@@ -179,8 +221,8 @@ export interface JobStatus {
   fraction: number;
   stage: string;
   elapsedMs: number;
-  /** When state is 'done': FitOutcome for 'fit', SimulateOutcome for 'simulate'. */
-  value?: FitOutcome | SimulateOutcome;
+  /** When state is 'done': FitOutcome for 'fit', SimulateOutcome for 'simulate', PlanReport for 'plan', DiscCalibrationOutcome for 'disc'. */
+  value?: FitOutcome | SimulateOutcome | PlanReport | DiscCalibrationOutcome;
   problem?: ApiProblem;
 }
 
@@ -261,6 +303,10 @@ export interface ShadowfrontApi {
   jobs: {
     startFit(req: FitRequest & { asset?: string }): Promise<ApiReply<{ id: string }>>;
     startSimulate(req: SimulateRequest): Promise<ApiReply<{ id: string }>>;
+    /** A bench plan as a job (a plan takes seconds): the plan is checked at once, the report is the job's value. */
+    startPlan(req: { plan: Record<string, unknown> }): Promise<ApiReply<{ id: string }>>;
+    /** A disc calibration as a job: the setup and the angles are checked at once, the calibration is the job's value. */
+    startDiscCalibration(req: DiscCalibrationRequest): Promise<ApiReply<{ id: string }>>;
     status(req: { id: string }): Promise<ApiReply<JobStatus>>;
     cancel(req: { id: string }): Promise<ApiReply<{ cancelled: boolean }>>;
   };
@@ -268,6 +314,11 @@ export interface ShadowfrontApi {
     info(): Promise<ApiReply<LogbookInfo>>;
     assets(): Promise<ApiReply<Asset[]>>;
     discs(): Promise<ApiReply<Disc[]>>;
+    /**
+     * Store a trusted disc calibration in the disc library: a new disc of that name, or the named disc's
+     * calibration. An existing calibration is refused (kind "exists") unless `replace` is set.
+     */
+    saveDiscProfile(req: SaveDiscProfileRequest): Promise<ApiReply<{ disc: Disc; created: boolean; replaced: boolean }>>;
     measurements(req: MeasurementQuery): Promise<ApiReply<MeasurementSummary[]>>;
     measurement(req: { id: number }): Promise<ApiReply<MeasurementRecord>>;
     save(req: SaveMeasurementRequest): Promise<ApiReply<{ id: number }>>;
@@ -298,11 +349,14 @@ export const API_CHANNELS = [
   'frames.demoFiles',
   'jobs.startFit',
   'jobs.startSimulate',
+  'jobs.startPlan',
+  'jobs.startDiscCalibration',
   'jobs.status',
   'jobs.cancel',
   'logbook.info',
   'logbook.assets',
   'logbook.discs',
+  'logbook.saveDiscProfile',
   'logbook.measurements',
   'logbook.measurement',
   'logbook.save',

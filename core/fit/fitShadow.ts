@@ -433,7 +433,11 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     (f, i) => polishMode === 'always' || (polishMode === 'auto' && regionReachesShadowEdge(f, [sol.params[nz + 4 * i], sol.params[nz + 4 * i + 1]])),
   );
   let polishNote: string | null = null;
-  if (polishWhich.some(Boolean)) {
+  // A fit that does not describe the frame (wrong setup, wrong minimum) gains nothing from the polish.
+  const chi2BeforePolish = sol.chi2 / Math.max(1, fine.data.length - np);
+  if (polishWhich.some(Boolean) && chi2BeforePolish > 2) {
+    polishNote = `reference-model polish not run: χ²/dof = ${chi2BeforePolish.toFixed(2)} before it, so the model does not describe the frame`;
+  } else if (polishWhich.some(Boolean)) {
     let rounds = 0;
     let lastShift = NaN;
     try {

@@ -1,6 +1,6 @@
 /**
  * The window: the laser-safety notice first, then the screens (Bench setup, Frames, Result, Compare,
- * Logbook, Simulator) under one header. Every problem from the services, and any error in the window
+ * Logbook, Simulator, Planner, Discs) under one header. Every problem from the services, and any error in the window
  * itself, is shown in plain words in the problem banner.
  */
 import { Component, useCallback, useEffect, useRef, useState } from 'react';
@@ -16,8 +16,12 @@ import { ResultScreen } from './screens/ResultScreen.tsx';
 import { CompareScreen } from './screens/CompareScreen.tsx';
 import { LogbookScreen } from './screens/LogbookScreen.tsx';
 import { SimulatorScreen } from './screens/SimulatorScreen.tsx';
+import { PlannerScreen } from './screens/PlannerScreen.tsx';
+import { DiscScreen } from './screens/DiscScreen.tsx';
+import { usePlanner } from './lib/planner.ts';
+import { useDiscCalibration } from './lib/discCalibration.ts';
 
-export type ScreenId = 'setup' | 'frames' | 'result' | 'compare' | 'logbook' | 'simulator';
+export type ScreenId = 'setup' | 'frames' | 'result' | 'compare' | 'logbook' | 'simulator' | 'planner' | 'discs';
 
 export const SCREENS: { id: ScreenId; label: string; key: string }[] = [
   { id: 'setup', label: 'Bench setup', key: '1' },
@@ -26,6 +30,8 @@ export const SCREENS: { id: ScreenId; label: string; key: string }[] = [
   { id: 'compare', label: 'Compare', key: '4' },
   { id: 'logbook', label: 'Logbook', key: '5' },
   { id: 'simulator', label: 'Simulator', key: '6' },
+  { id: 'planner', label: 'Planner', key: '7' },
+  { id: 'discs', label: 'Discs', key: '8' },
 ];
 
 interface AppInfo {
@@ -63,6 +69,8 @@ export function App(props: { api: ShadowfrontApi }): JSX.Element {
   const [info, setInfo] = useState<AppInfo | null>(null);
   const [screen, setScreen] = useState<ScreenId>('setup');
   const session = useSession(api, onError);
+  const planner = usePlanner(api, onError);
+  const discCalibration = useDiscCalibration(api, onError);
   const mainRef = useRef<HTMLElement>(null);
   const setupLoaded = useRef(false);
 
@@ -102,7 +110,7 @@ export function App(props: { api: ShadowfrontApi }): JSX.Element {
     requestAnimationFrame(() => mainRef.current?.focus());
   }, []);
 
-  // Alt+1 … Alt+6 switch screens.
+  // Alt+1 … Alt+8 switch screens.
   useEffect(() => {
     if (gate !== 'closed') return;
     const onKey = (e: KeyboardEvent): void => {
@@ -154,6 +162,8 @@ export function App(props: { api: ShadowfrontApi }): JSX.Element {
               >
                 {s.label}
                 {s.id === 'result' && session.fit.running ? <span className="nav-dot" aria-label="fit running" /> : null}
+                {s.id === 'planner' && planner.job.running ? <span className="nav-dot" aria-label="plan running" /> : null}
+                {s.id === 'discs' && discCalibration.job.running ? <span className="nav-dot" aria-label="calibration running" /> : null}
               </button>
             ))}
           </nav>
@@ -170,6 +180,8 @@ export function App(props: { api: ShadowfrontApi }): JSX.Element {
             {screen === 'compare' ? <CompareScreen api={api} onError={onError} /> : null}
             {screen === 'logbook' ? <LogbookScreen api={api} onError={onError} /> : null}
             {screen === 'simulator' ? <SimulatorScreen api={api} onError={onError} /> : null}
+            {screen === 'planner' ? <PlannerScreen planner={planner} /> : null}
+            {screen === 'discs' ? <DiscScreen state={discCalibration} session={session} /> : null}
           </ScreenBoundary>
         </main>
       </div>

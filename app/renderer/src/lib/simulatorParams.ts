@@ -5,7 +5,6 @@
  */
 import type { SetupJson, SimulateRequest } from '../../../shared/contract.ts';
 import { zernikeName } from '../../../../core/zernike/index.ts';
-import { parseLength } from '../../../../core/units/parseQuantity.ts';
 
 /** The aberrations offered as sliders: ANSI j = 3 … 8 and 12 (astigmatism, defocus, trefoil, coma, spherical). */
 export const SIM_TERMS: readonly number[] = [3, 4, 5, 6, 7, 8, 12];
@@ -104,19 +103,6 @@ export function simulateRequest(setup: SetupJson, p: SimParams, size?: { widthPx
  */
 export function rmsWaves(p: SimParams): number {
   return Math.sqrt(SIM_TERMS.reduce((s, j) => s + (p.waves[j] ?? 0) ** 2, 0));
-}
-
-/** Disc radius a from the setup's "disc.diameter" (a unit string, e.g. "2.5 mm"), or null when it cannot be read. */
-export function discRadiusM(setup: SetupJson): number | null {
-  const disc = setup.disc;
-  if (!disc || typeof disc !== 'object') return null;
-  const d = (disc as Record<string, unknown>).diameter;
-  try {
-    const m = parseLength(d);
-    return Number.isFinite(m) && m > 0 ? m / 2 : null;
-  } catch {
-    return null;
-  }
 }
 
 /** How far the elliptical rim departs from the round one: e·a, metres (a_major − a). */

@@ -144,6 +144,15 @@ function Outcome(props: { outcome: FitOutcome; used: FitUsed; session: Session }
                 </dd>
               </>
             ) : null}
+            {r.disc ? (
+              <>
+                <dt>Disc profile used</dt>
+                <dd data-testid="result-disc">
+                  {r.disc.id !== null ? `#${r.disc.id} ` : ''}
+                  {r.disc.name} <span className="muted">(calibrated {r.disc.calibratedAt.slice(0, 10)})</span>
+                </dd>
+              </>
+            ) : null}
             <dt>Pattern centre (camera)</dt>
             <dd>
               ({fmtLength(r.center_m[0], 3)}, {fmtLength(r.center_m[1], 3)})

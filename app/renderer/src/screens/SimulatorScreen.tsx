@@ -12,7 +12,6 @@ import {
   ELLIPTICITY_RANGE,
   SIM_TERMS,
   WAVES_RANGE,
-  discRadiusM,
   marechalStrehl,
   paramsFromSetup,
   rimDeviationM,
@@ -246,7 +245,8 @@ export function SimulatorScreen(props: { api: ShadowfrontApi; onError: (p: ApiPr
   };
 
   const rms = rmsWaves(params);
-  const radius = setup ? discRadiusM(setup) : null;
+  // the disc radius as the service read it from the setup (units are parsed there, not here)
+  const radius = derived?.discRadiusM ?? null;
   const rimDev = radius !== null ? rimDeviationM(radius, params.ellipticity) : null;
   const tol = derived?.rimToleranceM ?? null;
   const stale = shownParams !== null && JSON.stringify(shownParams) !== JSON.stringify(params);
