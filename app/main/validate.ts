@@ -21,6 +21,8 @@ export const LIMITS = {
   longText: 100_000,
   tags: 100,
   ids: 10_000,
+  /** Disc angles in one disc calibration. */
+  discAngles: 36,
 } as const;
 
 function describe(v: unknown): string {
@@ -45,6 +47,7 @@ export const text =
 
 export const finite: Check = (v, p) => (typeof v === 'number' && Number.isFinite(v) ? null : fail(p, v, 'a finite number'));
 export const integer: Check = (v, p) => (typeof v === 'number' && Number.isSafeInteger(v) ? null : fail(p, v, 'a whole number'));
+export const bool: Check = (v, p) => (typeof v === 'boolean' ? null : fail(p, v, 'true or false'));
 export const bytes: Check = (v, p) => (v instanceof Uint8Array ? null : fail(p, v, 'the bytes of a file'));
 
 export const oneOf =
@@ -149,11 +152,20 @@ export const VALIDATORS: Record<ApiChannel, Check> = {
     heightPx: optional(integer),
     model: optional(oneOf('fast', 'reference')),
   }),
+  'jobs.startPlan': object({ plan: anyObject }),
+  'jobs.startDiscCalibration': object({
+    setup: anyObject,
+    sets: list(object({ angle: text(), frames: files, darks: optional(files) }), LIMITS.discAngles),
+    beam: oneOf('fit', 'ideal'),
+    harmonics: optional(bool),
+    terms: optional(list(integer, 50)),
+  }),
   'jobs.status': id,
   'jobs.cancel': id,
   'logbook.info': nothing,
   'logbook.assets': nothing,
   'logbook.discs': nothing,
+  'logbook.saveDiscProfile': object({ name: text(), profile: anyObject, replace: optional(bool), notes: optional(text(LIMITS.longText)) }),
   'logbook.measurements': nullable(object(query)),
   'logbook.measurement': object({ id: integer }),
   'logbook.save': object({

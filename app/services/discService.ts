@@ -13,7 +13,7 @@ import { SetupFieldError } from '../../core/setup/fieldReader.ts';
 import { readJson } from './files.ts';
 import { loadBenchSetup, loadFramesForFit } from './frames.ts';
 import { softwareVersion } from './fitService.ts';
-import { openLogbook, LogbookProblem } from './logbook/logbook.ts';
+import { openLogbook, LogbookProblem, type Logbook } from './logbook/logbook.ts';
 import { resolveLogbookPath } from './logbook/paths.ts';
 
 export interface DiscAngleSet {
@@ -112,22 +112,36 @@ export async function saveDiscProfile(
   const path = resolveLogbookPath(db).path;
   const lb = await openLogbook(path, { write: true, command: 'disc calibrate' });
   try {
-    const existing = lb.getDisc(discKey(name));
-    if (existing) {
-      const had = existing.calibration !== null && existing.calibration !== undefined;
-      if (had && !options.replace) {
-        const when = (existing.calibration as { calibratedAt?: unknown }).calibratedAt;
-        throw new RangeError(
-          `disc #${existing.id} "${existing.name}" already has a calibration${typeof when === 'string' ? ` (made ${when})` : ''}: nothing was changed; replace it on purpose (--replace), or store this one under another name`,
-        );
-      }
-      return { disc: lb.setDiscCalibration(existing.id, profile), created: false, replaced: had };
-    }
-    if (typeof discKey(name) === 'number') throw new RangeError(`no disc #${name} in the logbook ${lb.path}: give a name to create a new disc`);
-    return { disc: lb.addDisc({ name, nominalDiameterM: 2 * profile.radiusM, calibration: profile, notes: options.notes }), created: true, replaced: false };
+    return storeDiscProfile(lb, name, profile, options);
   } finally {
     lb.close();
   }
+}
+
+/**
+ * The same as saveDiscProfile, in a logbook already open for writing (the app service opens it through its
+ * own access, app/services/app/logbookAccess.ts).
+ * @throws RangeError for an existing calibration without `replace`, or an unknown disc id.
+ */
+export function storeDiscProfile(
+  lb: Logbook,
+  name: string,
+  profile: DiscProfile,
+  options: { replace?: boolean; notes?: string } = {},
+): { disc: Disc; created: boolean; replaced: boolean } {
+  const existing = lb.getDisc(discKey(name));
+  if (existing) {
+    const had = existing.calibration !== null && existing.calibration !== undefined;
+    if (had && !options.replace) {
+      const when = (existing.calibration as { calibratedAt?: unknown }).calibratedAt;
+      throw new RangeError(
+        `disc #${existing.id} "${existing.name}" already has a calibration${typeof when === 'string' ? ` (made ${when})` : ''}: nothing was changed; replace it on purpose (--replace), or store this one under another name`,
+      );
+    }
+    return { disc: lb.setDiscCalibration(existing.id, profile), created: false, replaced: had };
+  }
+  if (typeof discKey(name) === 'number') throw new RangeError(`no disc #${name} in the logbook ${lb.path}: give a name to create a new disc`);
+  return { disc: lb.addDisc({ name, nominalDiameterM: 2 * profile.radiusM, calibration: profile, notes: options.notes }), created: true, replaced: false };
 }
 
 /**

@@ -1,7 +1,7 @@
 /**
  * The job worker: runs fits and simulations off the calling thread and posts progress back.
  *
- * Messages in:  { type: 'run', jobId, kind: 'fit' | 'simulate' | 'plan', payload, cancel: SharedArrayBuffer(4) }
+ * Messages in:  { type: 'run', jobId, kind: 'fit' | 'simulate' | 'plan' | 'disc', payload, cancel: SharedArrayBuffer(4) }
  * Messages out: { type: 'progress', jobId, fraction, stage } | { type: 'done', jobId, value }
  *               | { type: 'failed', jobId, problem } | { type: 'cancelled', jobId }
  * Cancelling: the caller sets cancel[0] = 1; the next progress call returns false and the work stops.
@@ -13,7 +13,7 @@ import { toProblem } from './problems.ts';
 export interface RunMessage {
   type: 'run';
   jobId: string;
-  kind: 'fit' | 'simulate' | 'plan';
+  kind: 'fit' | 'simulate' | 'plan' | 'disc';
   payload: unknown;
   cancel: SharedArrayBuffer;
 }
@@ -40,6 +40,12 @@ async function runPlan(payload: { plan: unknown }, progress: (fraction: number, 
   return runPlanJson(payload.plan, 'bench plan', (f) => progress(f, 'planning'));
 }
 
+/** A disc calibration (./disc.ts), loaded on first use. */
+async function runDisc(payload: unknown, progress: (fraction: number, stage: string) => boolean): Promise<unknown> {
+  const { runDiscJob } = await import('./disc.ts');
+  return runDiscJob(payload as import('./disc.ts').DiscJobPayload, progress);
+}
+
 port.on('message', async (msg: RunMessage) => {
   if (msg?.type !== 'run') return;
   const flag = new Int32Array(msg.cancel);
@@ -61,7 +67,9 @@ port.on('message', async (msg: RunMessage) => {
         ? runFitJob(msg.payload as FitJobPayload, progress)
         : msg.kind === 'simulate'
           ? runSimulateJob(msg.payload as SimulateJobPayload, progress)
-          : await runPlan(msg.payload as { plan: unknown }, progress);
+          : msg.kind === 'disc'
+            ? await runDisc(msg.payload, progress)
+            : await runPlan(msg.payload as { plan: unknown }, progress);
     port.postMessage({ type: 'done', jobId: msg.jobId, value }, buffersOf(value));
   } catch (err) {
     if ((err as Error)?.name === 'CancelledError' || Atomics.load(flag, 0) === 1) port.postMessage({ type: 'cancelled', jobId: msg.jobId });

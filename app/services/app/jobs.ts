@@ -8,7 +8,7 @@
 import { randomUUID } from 'node:crypto';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
-import type { ApiProblem, FitOutcome, JobKind, JobStatus, SimulateOutcome } from '../../shared/contract.ts';
+import type { ApiProblem, JobKind, JobStatus } from '../../shared/contract.ts';
 import { AppProblem, type InternalLogger, logToStderr } from './problems.ts';
 
 export const KEEP_FINISHED_MS = 10 * 60 * 1000;
@@ -24,8 +24,10 @@ export function defaultWorkerEntry(): string {
   return fileURLToPath(new URL('./worker.mjs', import.meta.url));
 }
 
-/** The kinds of work: the interface's job kinds, plus bench plans (awaited by the service's plan.run). */
-export type WorkKind = JobKind | 'plan';
+/** The kinds of work: the interface's job kinds (a bench plan is also awaited whole by the service's plan.run). */
+export type WorkKind = JobKind;
+
+type JobValue = NonNullable<JobStatus['value']>;
 
 interface Job {
   id: string;
@@ -35,9 +37,11 @@ interface Job {
   stage: string;
   startedAt: number;
   endedAt: number | null;
-  value?: FitOutcome | SimulateOutcome;
+  value?: JobValue;
   problem?: ApiProblem;
   cancel: Int32Array;
+  /** A job awaited whole by the service (`run`): not visible through `status`. */
+  hidden?: boolean;
   /** Called once when the job leaves the running state. */
   onEnd?: () => void;
 }
@@ -52,12 +56,12 @@ interface Slot {
 
 type WorkerMessage =
   | { type: 'progress'; jobId: string; fraction: number; stage: string }
-  | { type: 'done'; jobId: string; value: FitOutcome | SimulateOutcome }
+  | { type: 'done'; jobId: string; value: JobValue }
   | { type: 'failed'; jobId: string; problem: ApiProblem }
   | { type: 'cancelled'; jobId: string };
 
-const KIND_WORDS: Record<WorkKind, string> = { fit: 'A fit', simulate: 'A simulation', plan: 'A bench plan' };
-const KIND_NOUN: Record<WorkKind, string> = { fit: 'fit', simulate: 'simulation', plan: 'bench plan' };
+const KIND_WORDS: Record<WorkKind, string> = { fit: 'A fit', simulate: 'A simulation', plan: 'A bench plan', disc: 'A disc calibration' };
+const KIND_NOUN: Record<WorkKind, string> = { fit: 'fit', simulate: 'simulation', plan: 'bench plan', disc: 'disc calibration' };
 
 export class JobManager {
   private readonly jobs = new Map<string, Job>();
@@ -153,7 +157,7 @@ export class JobManager {
    * Start a job of a kind; refused with kind "busy" while another of the same kind runs. A job cancelled
    * a moment ago may still be stopping in the worker: the new one waits behind it there.
    */
-  start(kind: WorkKind, payload: unknown): string {
+  start(kind: WorkKind, payload: unknown, options: { hidden?: boolean } = {}): string {
     if (this.closed) throw new AppProblem('internal', 'Shadowfront is shutting down; the job was not started.');
     this.prune();
     const slot = this.slots.get(kind) ?? this.spawn(kind);
@@ -167,6 +171,7 @@ export class JobManager {
       startedAt: this.now(),
       endedAt: null,
       cancel: new Int32Array(new SharedArrayBuffer(4)),
+      ...(options.hidden ? { hidden: true } : {}),
     };
     this.jobs.set(job.id, job);
     slot.current = job;
@@ -176,7 +181,7 @@ export class JobManager {
 
   /** Run a job to its end: its value, or its problem thrown as an AppProblem. */
   run(kind: WorkKind, payload: unknown): Promise<unknown> {
-    const id = this.start(kind, payload);
+    const id = this.start(kind, payload, { hidden: true });
     const job = this.jobs.get(id)!;
     return new Promise((resolve, reject) => {
       const settle = () => {
@@ -203,7 +208,7 @@ export class JobManager {
 
   status(id: string): JobStatus {
     const job = this.require(id);
-    if (job.kind === 'plan') throw new AppProblem('not-found', `There is no job "${id}".`, undefined, 'id');
+    if (job.hidden) throw new AppProblem('not-found', `There is no job "${id}".`, undefined, 'id');
     const s: JobStatus = {
       id: job.id,
       kind: job.kind,

@@ -206,7 +206,7 @@ function AngleRow(props: { slot: AngleSlot; index: number; state: DiscCalibratio
       <div className="field field-inline">
         <label htmlFor={angleId}>Angle {i + 1}</label>
         <input id={angleId} type="text" className="input-short" value={slot.angle} onChange={(e) => state.updateSlot(slot.key, { angle: e.target.value })} placeholder="e.g. 90" disabled={disabled} data-testid={`disc-angle-${i}`} />
-        <span className="field-unit">° (or with a unit)</span>
+        <span className="field-unit">degrees, unless a unit is given</span>
       </div>
       <div className="angle-files">
         <button type="button" className="small" onClick={() => frameRef.current?.click()} disabled={disabled}>
@@ -305,7 +305,7 @@ function DiscLibrary(props: { library: Disc[]; loaded: boolean; onRefresh: () =>
 function separationWords(s: DiscProfile['separation'][number], degenerate: boolean): string {
   const what = s.order === 2 ? 'The disc ellipticity (order 2)' : `The disc edge harmonic of order ${s.order}`;
   const terms = s.beamTerms.map((j) => `${zernikeName(j)} (j = ${j})`).join(' and ');
-  const corr = Number.isFinite(s.maxAbsCorrelation) ? s.maxAbsCorrelation.toFixed(2) : 'not known';
+  const corr = Number.isFinite(s.maxAbsCorrelation) ? s.maxAbsCorrelation.toFixed(3) : 'not known';
   const spread = `the disc angles spread ${s.angleSpread.toFixed(2)} (1 = the best spread for this order, 0 = all at one angle)`;
   const verdict =
     degenerate && (s.angleSpread < 1e-6 || !(s.maxAbsCorrelation <= 0.95))
@@ -356,9 +356,10 @@ function CalibrationResult(props: { outcome: DiscCalibrationOutcome; used: Calib
           <dl className="figures big-figures">
             <dt>Ellipticity e</dt>
             <dd data-testid="disc-ellipticity">{fmtPm(p.ellipticity, p.sigmaEllipticity)}</dd>
-            <dt>Radius difference e·a</dt>
+            <dt>e·a</dt>
             <dd>
-              {fmtPm(p.ellipticity * a * 1e6, p.sigmaEllipticity * a * 1e6)} µm <span className="muted">(a = {fmtNum(a * 1e3, 4)} mm)</span>
+              {fmtPm(p.ellipticity * a * 1e6, p.sigmaEllipticity * a * 1e6)} µm
+              <div className="muted small-text">radius difference, a = {fmtNum(a * 1e3, 4)} mm</div>
             </dd>
             <dt>Long axis</dt>
             <dd data-testid="disc-axis">{fmtDeg(p.axisRad, p.sigmaAxisRad)}</dd>
@@ -471,6 +472,12 @@ function CalibrationResult(props: { outcome: DiscCalibrationOutcome; used: Calib
                 <>
                   Store under <strong>{state.name.trim()}</strong>
                   {existing ? ` (disc #${existing.id}${hasCalibration ? ', which already has a calibration' : ''})` : ' (a new disc)'}
+                  {existing && Math.abs(2 * a - existing.nominalDiameterM) > 0.01 * existing.nominalDiameterM ? (
+                    <span className="warn-text" data-testid="disc-size-mismatch">
+                      {' '}
+                      · the setup of this calibration has a {fmtNum(2 * a * 1e3, 4)} mm disc, the library lists this disc as {fmtNum(existing.nominalDiameterM * 1e3, 4)} mm
+                    </span>
+                  ) : null}
                 </>
               ) : (
                 <span className="muted">Give the disc a name above to store the calibration.</span>
