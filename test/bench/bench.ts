@@ -8,7 +8,7 @@ import { fastField } from '../../core/optics/fast/rimModel.ts';
 import { referenceField } from '../../core/optics/reference/index.ts';
 import { pixelSampleAxes } from '../../core/camera/pixels.ts';
 import type { BenchSetup, ZernikeTerm } from '../../core/setup/types.ts';
-import { cpus } from 'node:os';
+import { cpus, loadavg } from 'node:os';
 
 const setup: BenchSetup = {
   wavelengthM: 632.8e-9,
@@ -102,5 +102,11 @@ for (const size of [256, 512]) {
       binning = r.regions[0].binning;
     }, 3);
     row(`${size}×${size}`, label, `fit ${(t / 1000).toFixed(2)} s (super-pixels ${binning}×${binning})`);
+    if (label.startsWith('whole')) {
+      // the same fit without the reference-model polish (core/fit/referencePolish.ts), to show its cost
+      const t2 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3, referencePolish: 'never' }), 3);
+      row(`${size}×${size}`, `${label}, no polish`, `fit ${(t2 / 1000).toFixed(2)} s`);
+    }
   }
 }
+process.stdout.write(`\nload average at the end: ${loadavg().map((v) => v.toFixed(2)).join(' ')}\n`);
