@@ -48,6 +48,8 @@ export const text =
 export const finite: Check = (v, p) => (typeof v === 'number' && Number.isFinite(v) ? null : fail(p, v, 'a finite number'));
 export const integer: Check = (v, p) => (typeof v === 'number' && Number.isSafeInteger(v) ? null : fail(p, v, 'a whole number'));
 export const bool: Check = (v, p) => (typeof v === 'boolean' ? null : fail(p, v, 'true or false'));
+/** A name or an id: text, or a whole number. */
+export const textOrWholeNumber: Check = (v, p) => (typeof v === 'number' ? integer(v, p) : typeof v === 'string' ? text()(v, p) : fail(p, v, 'text or a whole number'));
 export const bytes: Check = (v, p) => (v instanceof Uint8Array ? null : fail(p, v, 'the bytes of a file'));
 
 export const oneOf =
@@ -143,7 +145,13 @@ export const VALIDATORS: Record<ApiChannel, Check> = {
   'setup.deletePreset': id,
   'frames.preview': object(frameSet),
   'frames.demoFiles': nothing,
-  'jobs.startFit': object({ ...frameSet, terms: optional(list(integer, 50)), asset: optional(text()) }),
+  'jobs.startFit': object({
+    ...frameSet,
+    terms: optional(list(integer, 50)),
+    asset: optional(text()),
+    disc: optional(textOrWholeNumber),
+    discAngleDeg: optional(finite),
+  }),
   'jobs.startSimulate': object({
     setup: anyObject,
     aberrationsWaves: record(finite, 500),

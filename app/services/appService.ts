@@ -38,7 +38,7 @@ import { examplePlanJson } from './planService.ts';
 import type { PlanReport } from '../../core/plan/types.ts';
 import { parsePlan } from '../../core/plan/parsePlan.ts';
 import { parseDiscProfile } from '../../core/fit/disc/profile.ts';
-import { discJobPayload } from './app/disc.ts';
+import { discJobPayload, fitDiscProfile } from './app/disc.ts';
 
 export interface AppServiceOptions {
   /** Where the app keeps its own small files (safety.json, presets.json). */
@@ -193,14 +193,23 @@ export function createAppService(options: AppServiceOptions): AppService {
         run(async () => {
           if (!req.frames?.length) throw new AppProblem('frame', 'No frame was given: open or drop at least one camera frame.', undefined, 'frames');
           const setup = parseSetup(req.setup, 'bench setup'); // a bad field is reported at once, not from the worker
-          const { asset, ...request } = req;
+          const { asset, disc, discAngleDeg, ...request } = req;
+          if (discAngleDeg !== undefined && disc === undefined) {
+            throw new AppProblem('invalid-input', `A disc angle (${discAngleDeg}°) turns a calibrated disc's shape: choose the disc too, or leave the angle out.`, undefined, 'discAngleDeg');
+          }
+          if (discAngleDeg !== undefined && !Number.isFinite(discAngleDeg)) {
+            throw new AppProblem('invalid-input', `The disc angle is ${String(discAngleDeg)}; expected a number of degrees, e.g. 0 or 90.`, undefined, 'discAngleDeg');
+          }
+          // The logbook belongs to the service: the disc's profile is read here and handed to the worker.
+          const discProfile = disc === undefined ? null : fitDiscProfile(await logbook.reader(), logbook.path, disc);
+          const discRotationRad = discAngleDeg === undefined ? 0 : (discAngleDeg * Math.PI) / 180;
           let limits: AssetLimits | null = null;
           try {
             limits = await limitsFor(asset);
           } catch {
             limits = null; // an unreadable logbook does not stop a fit; the verdict is then left out
           }
-          return { id: jobs.start('fit', { request, setup, limits }) };
+          return { id: jobs.start('fit', { request, setup, limits, discProfile, discRotationRad }) };
         }),
       startSimulate: (req) =>
         run(() => {

@@ -133,6 +133,16 @@ export interface FramePreview {
 export interface FitRequest extends FrameSetRequest {
   /** ANSI indices; default 3, 4, 5, 7, 8. */
   terms?: number[];
+  /**
+   * A calibrated disc of the logbook's disc library (its id, or its name): the fit applies its stored shape
+   * and the result records which calibration was used (`result.disc`). Default: no calibrated shape.
+   */
+  disc?: string | number;
+  /**
+   * How far the disc is turned from its calibrated position in these frames, degrees, counter-clockwise
+   * seen from the laser looking downstream (default 0). Only with `disc`.
+   */
+  discAngleDeg?: number;
 }
 
 export interface SimulateRequest {

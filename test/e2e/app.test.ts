@@ -11,7 +11,8 @@
  *  6. the logbook's trend chart renders;
  *  7. a file that is not an image gives a problem naming the file;
  *  8. the bench planner runs the example plan: a ranked table, a recommendation and a chart of predicted σ;
- *  9. a disc is calibrated from synthetic frames at 0° and 90° and stored in the disc library.
+ *  9. a disc is calibrated from synthetic frames at 0° and 90° and stored in the disc library;
+ * 10. the Result screen offers that disc (and its angle) for the next fit.
  * No console errors and no page errors are allowed anywhere.
  *
  * Needs `npm run build` first (npm test does it). Outside CI the test is skipped, with a message, when the
@@ -70,6 +71,7 @@ function parsePm(text: string): { value: number; sigma: number; halfDigit: numbe
   const consoleErrors: string[] = [];
   const timings: Record<string, number> = {};
   let savedId = 0;
+  let savedDisc: { id: string; name: string } | null = null;
 
   const shot = async (name: string): Promise<void> => {
     await page.screenshot({ path: join(SHOTS, `e2e-${name}.png`), fullPage: false });
@@ -364,13 +366,32 @@ function parsePm(text: string): { value: number; sigma: number; halfDigit: numbe
     const id = await saved.getAttribute('data-id');
     await page.locator(`[data-testid="disc-row"][data-id="${id}"]`).waitFor();
     expect(await page.locator(`[data-testid="disc-row"][data-id="${id}"]`).getAttribute('data-name')).toBe(name);
+    savedDisc = { id: id ?? '', name };
     await scrollToTop('disc-result');
     await shot('10-discs');
     await scrollToTop('disc-screen');
     await shot('10b-disc-library');
   }, 120_000);
 
-  it('10. logged no console errors and no page errors', () => {
+  it('10. offers the calibrated disc for the next fit on the Result screen', async () => {
+    expect(savedDisc).not.toBeNull();
+    await page.getByTestId('nav-result').click();
+    await page.getByTestId('result-screen').waitFor();
+    const select = page.getByTestId('fit-disc');
+    // "none" is the default; the angle is only asked for with a disc.
+    expect(await select.inputValue()).toBe('');
+    expect(await page.getByTestId('fit-disc-angle').isDisabled()).toBe(true);
+    const option = select.locator(`option[value="${savedDisc!.id}"]`);
+    await option.waitFor({ state: 'attached' });
+    expect((await option.textContent()) ?? '').toContain(savedDisc!.name);
+    await select.selectOption(savedDisc!.id);
+    expect(await page.getByTestId('fit-disc-angle').isEnabled()).toBe(true);
+    await page.getByTestId('fit-disc-angle').fill('90');
+    await page.evaluate(() => (globalThis as unknown as { scrollTo(x: number, y: number): void }).scrollTo(0, 0));
+    await shot('11-result-disc');
+  });
+
+  it('11. logged no console errors and no page errors', () => {
     expect(consoleErrors).toEqual([]);
   });
 });

@@ -2,10 +2,13 @@
  * The disc calibration as a job of the desktop app and the local web mode: the request is checked in the
  * service (the setup parsed, each disc angle read with its unit, every angle given frames), then the job
  * worker prepares the frames from bytes and calibrates through the same service function as the CLI
- * (../discService.ts calibratePreparedSets).
+ * (../discService.ts calibratePreparedSets). A later fit with a calibrated disc finds its profile here
+ * (fitDiscProfile), in the service, which owns the logbook; the worker gets the profile itself.
  */
 import type { DiscCalibrationOutcome, DiscCalibrationRequest } from '../../shared/contract.ts';
 import type { BenchSetup } from '../../../core/setup/types.ts';
+import { appliedProfile, parseDiscProfile, DISC_PROFILE_FORMAT, type AppliedDiscProfile } from '../../../core/fit/disc/profile.ts';
+import type { Logbook } from '../logbook/logbook.ts';
 import { parseAngle } from '../../../core/units/parseQuantity.ts';
 import { loadFramesFromBytes } from './prepareFromBytes.ts';
 import { AppProblem } from './problems.ts';
@@ -83,4 +86,50 @@ export async function runDiscJob(payload: DiscJobPayload, onProgress: Progress =
   });
   onProgress(1, 'done');
   return calibration;
+}
+
+/** "3", "#3" or 3 → the id 3; any other text is a name. */
+function discKeyOf(disc: string | number): string | number {
+  if (typeof disc === 'number') return disc;
+  const m = /^#?(\d+)$/.exec(disc.trim());
+  return m ? Number(m[1]) : disc.trim();
+}
+
+/**
+ * The stored profile of a disc of the library (id or name), in the form the fit applies
+ * (core/fit/disc/profile.ts AppliedDiscProfile); `lb` is null when there is no logbook yet.
+ * @throws AppProblem naming the disc: kind "not-found" (no such disc), "not-calibrated" (no trusted profile);
+ *   SetupFieldError naming the disc, the field and the value when its stored profile is damaged.
+ */
+export function fitDiscProfile(lb: Logbook | null, logbookPath: string, disc: string | number): AppliedDiscProfile {
+  const key = discKeyOf(disc);
+  const asked = typeof key === 'number' ? `#${key}` : `"${key}"`;
+  if (key === '') throw new AppProblem('invalid-input', 'The disc to use is empty: choose a calibrated disc of the library, or none.', undefined, 'disc');
+  if (!lb) {
+    throw new AppProblem('not-found', `Disc ${asked} cannot be used: there is no logbook (and so no disc library) at ${logbookPath} yet. Calibrate the disc on the Discs screen and save it first.`, logbookPath, 'disc');
+  }
+  const d = lb.getDisc(key);
+  if (!d) {
+    const known = lb.listDiscs().map((x) => `#${x.id} "${x.name}"`);
+    throw new AppProblem(
+      'not-found',
+      `There is no disc ${asked} in the disc library of ${logbookPath}; ${known.length ? `its discs are ${known.join(', ')}` : 'it has no discs yet'}. Choose a calibrated disc, or none.`,
+      logbookPath,
+      'disc',
+    );
+  }
+  const source = `disc #${d.id} "${d.name}"`;
+  if (!d.calibration || (d.calibration as { format?: unknown }).format !== DISC_PROFILE_FORMAT) {
+    throw new AppProblem('not-calibrated', `Disc #${d.id} "${d.name}" has no calibrated shape, so the fit cannot apply it: calibrate it on the Discs screen, or fit without a disc profile.`, undefined, 'disc');
+  }
+  const profile = parseDiscProfile(d.calibration, source);
+  if (!profile.trusted) {
+    throw new AppProblem(
+      'not-calibrated',
+      `Disc #${d.id} "${d.name}": its calibration is marked not trustworthy (${profile.degenerate ? 'the disc shape was not told apart from the beam' : 'the calibration fit was suspect'}), so the fit does not use it. Calibrate the disc again.`,
+      undefined,
+      'disc',
+    );
+  }
+  return appliedProfile(profile, d.id, d.name);
 }

@@ -6,6 +6,8 @@
 import type { FitOutcome, FitRequest, SimulateOutcome, SimulateRequest } from '../../shared/contract.ts';
 import type { BenchSetup, DiscSpec, EdgeHarmonic, Scene, ZernikeTerm } from '../../../core/setup/types.ts';
 import { simulateIntensity } from '../../../core/optics/simulate.ts';
+import type { AppliedDiscProfile } from '../../../core/fit/disc/profile.ts';
+import { discWithShape } from '../../../core/fit/disc/shape.ts';
 import { loadFramesFromBytes } from './prepareFromBytes.ts';
 import { fitPreparedSets } from './fitSets.ts';
 import { fitOutcome, type AssetLimits } from './outcome.ts';
@@ -18,6 +20,10 @@ export interface FitJobPayload {
   /** request.setup, parsed. */
   setup: BenchSetup;
   limits: AssetLimits | null;
+  /** The calibrated disc profile to apply (request.disc, read from the logbook by the service), or none. */
+  discProfile?: AppliedDiscProfile | null;
+  /** How far the disc is turned from its calibrated position, rad (request.discAngleDeg). */
+  discRotationRad?: number;
 }
 
 export interface SimulateJobPayload {
@@ -33,10 +39,18 @@ export function runFitJob(payload: FitJobPayload, onProgress: Progress = () => t
   const setup = payload.setup;
   const prepared = loadFramesFromBytes(req.frames, req.darks ?? [], setup, req.region ?? null);
   if (onProgress(0.02, 'fitting') === false) throw cancelled();
-  const set = { setup, prepared };
-  const result = fitPreparedSets([set], { terms: req.terms, onProgress: (f, stage) => onProgress(0.02 + 0.93 * f, stage) });
+  const profile = payload.discProfile ?? null;
+  const rotation = payload.discRotationRad ?? 0;
+  const set = { setup, prepared, ...(profile ? { discRotationRad: rotation } : {}) };
+  const result = fitPreparedSets([set], {
+    terms: req.terms,
+    options: profile ? { discProfile: profile } : undefined,
+    onProgress: (f, stage) => onProgress(0.02 + 0.93 * f, stage),
+  });
   if (onProgress(0.96, 'model images') === false) throw cancelled();
-  const outcome = fitOutcome(result, set, payload.limits);
+  // The model images are drawn with the disc shape the fit applied (the calibrated profile, turned).
+  const shown = profile ? { ...set, setup: { ...setup, disc: discWithShape(setup.disc, profile.terms, rotation) } } : set;
+  const outcome = fitOutcome(result, shown, payload.limits);
   onProgress(1, 'done');
   return outcome;
 }

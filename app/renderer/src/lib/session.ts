@@ -4,10 +4,10 @@
  * switching screens loses nothing and a running fit keeps going.
  *
  * All the work happens in the services through the API; this only sequences calls: the setup is checked
- * (debounced) as it is typed, the preview follows a valid setup and the frames, and a fit job is polled
- * about every 200 ms until it is done, failed or cancelled.
+ * (debounced) as it is typed, the preview follows a valid setup and the frames, and a fit job is followed
+ * by the same loop as every other job (./jobRun.ts useJobRun) until it is done, failed or cancelled.
  */
-import { useCallback, useEffect, useRef, useState } from 'react';
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type {
   ApiProblem,
   FileBlob,
@@ -18,7 +18,8 @@ import type {
   SetupJson,
   ShadowfrontApi,
 } from '../../../shared/contract.ts';
-import type { Asset } from '../../../../core/logbook/types.ts';
+import type { Asset, Disc } from '../../../../core/logbook/types.ts';
+import { useJobRun } from './jobRun.ts';
 
 export interface FrameSet {
   frames: FileBlob[];
@@ -39,6 +40,19 @@ export interface FitUsed {
   terms: number[];
   asset: string | null;
   label: string;
+  /** The library disc whose calibrated shape the fit applies (its id), and how far it is turned, degrees. */
+  disc: number | null;
+  discAngleDeg: number | null;
+}
+
+/** What the fit is started with on the Result screen. */
+export interface FitChoice {
+  terms: number[];
+  asset: string | null;
+  /** A calibrated disc of the library (its id), or null for none. */
+  disc?: number | null;
+  /** The disc's turn from its calibrated position, degrees (only with `disc`). */
+  discAngleDeg?: number | null;
 }
 
 export interface FitState {
@@ -68,28 +82,36 @@ export interface Session {
   previewBusy: boolean;
   previewProblem: ApiProblem | null;
   fit: FitState;
-  startFit: (opts: { terms: number[]; asset: string | null }) => void;
+  startFit: (opts: FitChoice) => void;
   cancelFit: () => void;
   assets: Asset[];
   refreshAssets: () => void;
+  /** The logbook's disc library (Result screen: the calibrated ones, calibratedDiscs). */
+  discs: Disc[];
+  refreshDiscs: () => void;
 }
 
 export const CHECK_DELAY_MS = 300;
 export const PREVIEW_DELAY_MS = 250;
-export const POLL_MS = 200;
 
 const EMPTY_FRAMES: FrameSet = { frames: [], darks: [], label: '' };
-const IDLE_FIT: FitState = { running: false, cancelling: false, status: null, outcome: null, used: null, note: null };
+
+/** The format of a stored disc profile (core/fit/disc/profile.ts DISC_PROFILE_FORMAT). */
+const DISC_PROFILE_FORMAT = 'shadowfront-disc-profile/1';
+
+/** The discs whose stored calibration is a trusted disc profile: the ones a fit can apply. */
+export function calibratedDiscs(discs: readonly Disc[]): Disc[] {
+  return discs.filter((d) => {
+    const c = d.calibration as { format?: unknown; trusted?: unknown } | null | undefined;
+    return !!c && typeof c === 'object' && c.format === DISC_PROFILE_FORMAT && c.trusted === true;
+  });
+}
 
 /** Reads browser File objects into FileBlobs (name and bytes). */
 export async function readFiles(files: Iterable<File>): Promise<FileBlob[]> {
   const out: FileBlob[] = [];
   for (const f of files) out.push({ name: f.name, data: new Uint8Array(await f.arrayBuffer()) });
   return out;
-}
-
-function sleep(ms: number): Promise<void> {
-  return new Promise((r) => setTimeout(r, ms));
 }
 
 export function useSession(api: ShadowfrontApi, onError: (p: ApiProblem) => void): Session {
@@ -102,9 +124,10 @@ export function useSession(api: ShadowfrontApi, onError: (p: ApiProblem) => void
   const [preview, setPreview] = useState<FramePreview | null>(null);
   const [previewBusy, setPreviewBusy] = useState(false);
   const [previewProblem, setPreviewProblem] = useState<ApiProblem | null>(null);
-  const [fit, setFit] = useState<FitState>(IDLE_FIT);
+  const [used, setUsed] = useState<FitUsed | null>(null);
+  const fitJob = useJobRun<FitOutcome>(api, onError, 'fit');
   const [assets, setAssets] = useState<Asset[]>([]);
-  const jobRef = useRef<string | null>(null);
+  const [discs, setDiscs] = useState<Disc[]>([]);
   const onErrorRef = useRef(onError);
   onErrorRef.current = onError;
   const immediateRef = useRef(false);
@@ -182,84 +205,54 @@ export function useSession(api: ShadowfrontApi, onError: (p: ApiProblem) => void
     refreshAssets();
   }, [refreshAssets]);
 
+  const refreshDiscs = useCallback(() => {
+    void api.logbook.discs().then((reply) => {
+      if (reply.ok) setDiscs(reply.value);
+      else onErrorRef.current(reply.problem);
+    });
+  }, [api]);
+
+  const { start: startJob } = fitJob;
   const startFit = useCallback(
-    (opts: { terms: number[]; asset: string | null }) => {
-      if (jobRef.current) return;
+    (opts: FitChoice) => {
+      if (fitJob.running) return;
       const s = setup;
       if (!s || frameSet.frames.length === 0) {
         onErrorRef.current({ kind: 'frame', message: 'Load at least one frame (Frames screen) and a valid bench setup before running the fit.' });
         return;
       }
-      const used: FitUsed = { setup: s, frames: frameSet.frames, darks: frameSet.darks, terms: opts.terms, asset: opts.asset, label: frameSet.label };
-      const marker = `starting-${Date.now()}`;
-      jobRef.current = marker;
-      setFit({ running: true, cancelling: false, status: null, outcome: null, used, note: null });
-      void (async () => {
-        const started = await api.jobs.startFit({
-          frames: used.frames,
-          darks: used.darks,
-          setup: used.setup,
+      const disc = opts.disc ?? null;
+      const next: FitUsed = {
+        setup: s,
+        frames: frameSet.frames,
+        darks: frameSet.darks,
+        terms: opts.terms,
+        asset: opts.asset,
+        label: frameSet.label,
+        disc,
+        discAngleDeg: disc !== null ? (opts.discAngleDeg ?? null) : null,
+      };
+      const started = startJob(() =>
+        api.jobs.startFit({
+          frames: next.frames,
+          darks: next.darks,
+          setup: next.setup,
           region,
-          terms: used.terms,
-          ...(used.asset ? { asset: used.asset } : {}),
-        });
-        if (!started.ok) {
-          jobRef.current = null;
-          setFit((f) => ({ ...f, running: false }));
-          onErrorRef.current(started.problem);
-          return;
-        }
-        const id = started.value.id;
-        if (jobRef.current !== marker) {
-          // cancelled while starting
-          await api.jobs.cancel({ id });
-          return;
-        }
-        jobRef.current = id;
-        for (;;) {
-          const st = await api.jobs.status({ id });
-          if (jobRef.current !== id) return;
-          if (!st.ok) {
-            jobRef.current = null;
-            setFit((f) => ({ ...f, running: false, cancelling: false }));
-            onErrorRef.current(st.problem);
-            return;
-          }
-          const status = st.value;
-          if (status.state === 'running') {
-            setFit((f) => ({ ...f, status }));
-            await sleep(POLL_MS);
-            continue;
-          }
-          jobRef.current = null;
-          if (status.state === 'done') {
-            setFit({ running: false, cancelling: false, status, outcome: (status.value as FitOutcome) ?? null, used, note: null });
-          } else if (status.state === 'cancelled') {
-            setFit((f) => ({ ...f, running: false, cancelling: false, status, note: 'The fit was cancelled; nothing was changed.' }));
-          } else {
-            setFit((f) => ({ ...f, running: false, cancelling: false, status, note: 'The fit stopped with a problem (see the message above).' }));
-            onErrorRef.current(status.problem ?? { kind: 'internal', message: 'The fit stopped without saying why.' });
-          }
-          return;
-        }
-      })();
+          terms: next.terms,
+          ...(next.asset ? { asset: next.asset } : {}),
+          ...(next.disc !== null ? { disc: next.disc } : {}),
+          ...(next.discAngleDeg !== null ? { discAngleDeg: next.discAngleDeg } : {}),
+        }),
+      );
+      if (started) setUsed(next);
     },
-    [api, setup, frameSet, region],
+    [api, startJob, fitJob.running, setup, frameSet, region],
   );
 
-  const cancelFit = useCallback(() => {
-    const id = jobRef.current;
-    if (!id) return;
-    setFit((f) => ({ ...f, cancelling: true }));
-    if (id.startsWith('starting-')) {
-      jobRef.current = null;
-      setFit((f) => ({ ...f, running: false, cancelling: false, note: 'The fit was cancelled; nothing was changed.' }));
-      return;
-    }
-    void api.jobs.cancel({ id }).then((reply) => {
-      if (!reply.ok) onErrorRef.current(reply.problem);
-    });
-  }, [api]);
+  const fit: FitState = useMemo(
+    () => ({ running: fitJob.running, cancelling: fitJob.cancelling, status: fitJob.status, outcome: fitJob.value, used, note: fitJob.note }),
+    [fitJob.running, fitJob.cancelling, fitJob.status, fitJob.value, fitJob.note, used],
+  );
 
   return {
     api,
@@ -277,8 +270,10 @@ export function useSession(api: ShadowfrontApi, onError: (p: ApiProblem) => void
     previewProblem,
     fit,
     startFit,
-    cancelFit,
+    cancelFit: fitJob.cancel,
     assets,
     refreshAssets,
+    discs,
+    refreshDiscs,
   };
 }

@@ -1,6 +1,7 @@
 /**
  * Following a job (contract: jobs.start* → poll jobs.status about every 200 ms → done, failed or
- * cancelled). Pure apart from the waiting, which is injected so that tests need no clock.
+ * cancelled). Pure apart from the waiting, which is injected so that tests need no clock. The one polling
+ * loop of the interface: the simulator screen and ./jobRun.ts useJobRun (fits, plans, disc calibrations).
  */
 import type { ApiProblem, ApiReply, JobStatus } from '../../../shared/contract.ts';
 

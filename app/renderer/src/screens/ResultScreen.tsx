@@ -1,10 +1,11 @@
 /**
- * Result: choose the Zernike terms, run the fit (a job with progress and Cancel), and read the result:
+ * Result: choose the Zernike terms (and, when the disc's shape is calibrated, the library disc and how far it
+ * is turned), run the fit (a job with progress and Cancel), and read the result:
  * coefficients in waves and nm with 1σ, RMS, peak-to-valley and Strehl against the asset's limits, the fit's
  * health (χ²/dof, termination, trusted), the wavefront map, measured / model / residual images, the radial
  * profile, the warnings; then save it to the logbook with tags and notes.
  */
-import { useMemo, useState } from 'react';
+import { useEffect, useMemo, useState } from 'react';
 import type { JSX } from 'react';
 import type { FitOutcome, ImagePlane } from '../../../shared/contract.ts';
 import type { FitResult } from '../../../../core/fit/result.ts';
@@ -12,7 +13,7 @@ import { zernikeName } from '../../../../core/zernike/zernike-name.ts';
 import { ImageView } from '../components/ImageView.tsx';
 import { ProfileChart } from '../components/ProfileChart.tsx';
 import { ProgressBar } from '../components/ProgressBar.tsx';
-import type { FitUsed, Session } from '../lib/session.ts';
+import { calibratedDiscs, type FitUsed, type Session } from '../lib/session.ts';
 import { fmtLength, fmtNum, fmtPm } from '../lib/format.ts';
 
 export const DEFAULT_TERMS = [3, 4, 5, 7, 8] as const;
@@ -20,13 +21,32 @@ export const OPTIONAL_TERMS = [6, 9, 12] as const;
 
 export function ResultScreen(props: { session: Session }): JSX.Element {
   const { session } = props;
-  const { fit, frameSet, startFit, cancelFit, assets, check } = session;
+  const { fit, frameSet, startFit, cancelFit, assets, check, discs, refreshDiscs, onError } = session;
   const [terms, setTerms] = useState<number[]>([...DEFAULT_TERMS]);
   const [asset, setAsset] = useState('');
+  const [disc, setDisc] = useState('');
+  const [discAngle, setDiscAngle] = useState('0');
+
+  // The library may have changed on the Discs screen: read it whenever this screen opens.
+  useEffect(() => refreshDiscs(), [refreshDiscs]);
+  const calibrated = useMemo(() => calibratedDiscs(discs), [discs]);
 
   const toggle = (j: number): void => setTerms((t) => (t.includes(j) ? t.filter((k) => k !== j) : [...t, j].sort((a, b) => a - b)));
   const canRun = frameSet.frames.length > 0 && !fit.running && terms.length > 0 && !check?.problem;
   const status = fit.status;
+
+  const run = (): void => {
+    let discAngleDeg: number | null = null;
+    if (disc !== '') {
+      const text = discAngle.trim();
+      discAngleDeg = text === '' ? 0 : Number(text);
+      if (!Number.isFinite(discAngleDeg)) {
+        onError({ kind: 'invalid-input', field: 'discAngleDeg', message: `The disc angle "${discAngle}" is not a number of degrees; give e.g. 0 or 90.` });
+        return;
+      }
+    }
+    startFit({ terms, asset: asset || null, disc: disc === '' ? null : Number(disc), discAngleDeg });
+  };
 
   return (
     <div className="screen result-screen" data-testid="result-screen">
@@ -59,7 +79,32 @@ export function ResultScreen(props: { session: Session }): JSX.Element {
               ))}
             </select>
           </div>
-          <button type="button" className="primary" onClick={() => startFit({ terms, asset: asset || null })} disabled={!canRun} data-testid="run-fit">
+          <div className="field">
+            <label htmlFor="fit-disc">Disc</label>
+            <select id="fit-disc" value={disc} onChange={(e) => setDisc(e.target.value)} disabled={fit.running} data-testid="fit-disc">
+              <option value="">not calibrated / none</option>
+              {calibrated.map((d) => (
+                <option key={d.id} value={String(d.id)}>
+                  #{d.id} {d.name}
+                </option>
+              ))}
+            </select>
+          </div>
+          <div className="field">
+            <label htmlFor="fit-disc-angle">Disc angle (°)</label>
+            <input
+              id="fit-disc-angle"
+              className="input-short"
+              type="number"
+              step="any"
+              value={discAngle}
+              onChange={(e) => setDiscAngle(e.target.value)}
+              disabled={fit.running || disc === ''}
+              title="How far the disc is turned from its calibrated position, counter-clockwise seen from the laser"
+              data-testid="fit-disc-angle"
+            />
+          </div>
+          <button type="button" className="primary" onClick={run} disabled={!canRun} data-testid="run-fit">
             Run fit
           </button>
         </div>
@@ -149,7 +194,11 @@ function Outcome(props: { outcome: FitOutcome; used: FitUsed; session: Session }
                 <dt>Disc profile used</dt>
                 <dd data-testid="result-disc">
                   {r.disc.id !== null ? `#${r.disc.id} ` : ''}
-                  {r.disc.name} <span className="muted">(calibrated {r.disc.calibratedAt.slice(0, 10)})</span>
+                  {r.disc.name}{' '}
+                  <span className="muted">
+                    (calibrated {r.disc.calibratedAt.slice(0, 10)}
+                    {used.discAngleDeg ? `; turned ${fmtNum(used.discAngleDeg, 4)}°` : ''})
+                  </span>
                 </dd>
               </>
             ) : null}
