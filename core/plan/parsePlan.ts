@@ -5,8 +5,8 @@
  * files). Field-by-field documentation: core/plan/README.md. Pure: no Node built-ins.
  */
 import { FieldReader, childPath, isPlainObject, type Field } from '../setup/fieldReader.ts';
-import { MAX_DISC_TO_BEAM_RADIUS, WAVELENGTH_MAX_M, WAVELENGTH_MIN_M, readSensorSize } from '../setup/parseSetup.ts';
-import { formatQuantity, parseQuantity, QuantityError } from '../units/parseQuantity.ts';
+import { MAX_DISC_TO_BEAM_RADIUS, WAVELENGTH_MAX_M, WAVELENGTH_MIN_M, readCurvature, readSensorSize } from '../setup/parseSetup.ts';
+import { formatQuantity } from '../units/parseQuantity.ts';
 import { DEFAULT_TERMS, OPTIONAL_TERMS } from '../fit/fitShadow.ts';
 import type { ZernikeTerm } from '../setup/types.ts';
 import { PLAN_FORMAT, type BenchPlan } from './types.ts';
@@ -187,21 +187,6 @@ export function parsePlan(json: unknown, sourceName = 'plan'): BenchPlan {
     zernikeRadiusM,
     aberrations,
   };
-}
-
-function readCurvature(reader: FieldReader, field: Field): number {
-  const expected = '"collimated" or a nonzero length such as "2 m", positive when the beam diverges and negative when it converges';
-  if (!field.present) reader.missing(field, expected);
-  if (typeof field.value === 'string' && field.value.trim().toLowerCase() === 'collimated') return Number.POSITIVE_INFINITY;
-  let radiusM: number;
-  try {
-    radiusM = parseQuantity(field.value, 'length', { allowInfinity: true, example: '2 m' });
-  } catch (err) {
-    if (err instanceof QuantityError) reader.fail(field, expected, err.detail);
-    throw err;
-  }
-  if (radiusM === 0) reader.fail(field, expected, 'zero curvature radius is not a beam');
-  return radiusM;
 }
 
 /** A list of positive lengths, or a range {"from", "to", "steps"} of evenly spaced values (both ends included). */

@@ -216,7 +216,8 @@ function withinRelative(x: number, lo: number, hi: number): boolean {
   return x >= lo * (1 - 1e-12) && x <= hi * (1 + 1e-12);
 }
 
-function readCurvature(reader: FieldReader, field: Field): number {
+/** A beam's wavefront curvature radius: "collimated" (∞) or a nonzero signed length. Shared with the plan format. */
+export function readCurvature(reader: FieldReader, field: Field): number {
   const expected = '"collimated" or a nonzero length such as "2 m", positive when the beam diverges and negative when it converges';
   if (!field.present) reader.missing(field, expected);
   if (typeof field.value === 'string' && field.value.trim().toLowerCase() === 'collimated') return Number.POSITIVE_INFINITY;
