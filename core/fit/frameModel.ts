@@ -1,7 +1,8 @@
 /**
  * The fit's forward model for one or more prepared camera frames: binned super-pixels inside each frame's
- * region of interest, the fast diffraction model evaluated at 2×2 Gauss–Legendre points of every
- * super-pixel (pixel-area integration), and the camera noise model (shot noise plus read noise).
+ * region of interest, the fast diffraction model sampled at every super-pixel's centre and averaged over the
+ * super-pixel by a separable filter (pixel-area integration), and the camera noise model (shot noise plus
+ * read noise).
  *
  * Parameters, in order: the Zernike coefficients (waves), then per frame [centre x (m), centre y (m),
  * scale (counts per unit relative intensity), background (counts)], then optionally a camera-distance
@@ -57,11 +58,13 @@ export interface BinnedFrame {
   /** Pixels per super-pixel that are unmasked (all for used ones). */
   pixelsPer: number;
   /**
-   * How the model integrates over a super-pixel: 'gl2' = mean of 2×2 Gauss–Legendre samples (xs, ys hold two
-   * samples per super-pixel); 'stencil' (1×1 super-pixels) = pixel-centre samples on a grid with a 2-pixel
-   * border (xs, ys hold W+4 and H+4 centres) and the separable 5-tap pixel-average filter PIXEL_FILTER.
+   * How the model integrates over a super-pixel: the model is sampled at the super-pixel centres on a grid
+   * with a border of PIXEL_FILTER_BORDER samples (xs, ys hold nbx + 2·border and nby + 2·border centres) and
+   * averaged by the separable filter PIXEL_FILTER.
    */
-  mode: 'gl2' | 'stencil';
+  mode: 'stencil';
+  /** Which points of the xs × ys grid the used super-pixels need (1 = needed), row-major. */
+  needed: Uint8Array;
   /**
    * A correction added to the model's relative intensity per used super-pixel, held constant during a fit:
    * the reference model minus the fast model at a previous solution (./referencePolish.ts), or null.
@@ -72,13 +75,19 @@ export interface BinnedFrame {
 }
 
 /**
- * Pixel-area average from pixel-centre samples, per axis: (1 + p²/24·D² + p⁴/1920·D⁴) with D² and D⁴ the
- * fourth- and second-order central differences (Taylor expansion of the box average; Abramowitz & Stegun
- * 25.3.24 for the 5-point second difference). Weights for offsets −2…2; they sum to 1.
+ * Super-pixel (box) average from samples at the super-pixel centres, per axis: a symmetric 7-tap filter
+ * whose response w₀ + 2Σₘ wₘ·cos(mθ) matches the box average's response sinc(θ/2) = sin(θ/2)/(θ/2) to
+ * within 5.1e-5 for θ = 2π·(super-pixel)/(period) ≤ 1.6 (least-squares design over θ ∈ [0, 1.7], weights
+ * summing to 1; a constant is kept exactly). The fit's binning keeps the ring period ≥ 5 super-pixels
+ * (θ ≤ 1.26). For comparison, 2×2 Gauss–Legendre sampling of each super-pixel is off by 5.7e-4 at θ = 1.26
+ * and needs four samples per super-pixel instead of one. Weights for offsets −3…3.
  */
-export const PIXEL_FILTER = [-1 / 288 + 1 / 1920, 16 / 288 - 4 / 1920, 1 - 30 / 288 + 6 / 1920, 16 / 288 - 4 / 1920, -1 / 288 + 1 / 1920];
-
-const GL2 = 0.5 / Math.sqrt(3);
+const PF1 = 0.0639018883003;
+const PF2 = -0.00745977333923;
+const PF3 = 0.000877734756823;
+export const PIXEL_FILTER: readonly number[] = [PF3, PF2, PF1, 1 - 2 * (PF1 + PF2 + PF3), PF1, PF2, PF3];
+/** Samples on each side of the super-pixel grid that the filter reads. */
+export const PIXEL_FILTER_BORDER = 3;
 
 /** Bin a frame into b×b super-pixels inside the region; super-pixels with any masked pixel are dropped. */
 export function binFrame(input: FitFrameInput, binning: number): BinnedFrame {
@@ -112,27 +121,27 @@ export function binFrame(input: FitFrameInput, binning: number): BinnedFrame {
       data.push(s / (b * b));
     }
   }
-  if (b === 1) {
-    const xs = new Float64Array(input.widthPx + 4);
-    const ys = new Float64Array(input.heightPx + 4);
-    for (let c = -2; c < input.widthPx + 2; c++) xs[c + 2] = (c - (input.widthPx - 1) / 2) * p;
-    for (let r = -2; r < input.heightPx + 2; r++) ys[r + 2] = -(r - (input.heightPx - 1) / 2) * p;
-    return { input, binning: 1, nbx, nby, used: Int32Array.from(used), data: Float64Array.from(data), xs, ys, pixelsPer: 1, mode: 'stencil' };
+  // Super-pixel (bx, by) covers columns bx·b … bx·b+b−1: its centre in camera metres relative to the frame
+  // centre. The grid holds every super-pixel centre plus the filter's border.
+  const B = PIXEL_FILTER_BORDER;
+  const xs = new Float64Array(nbx + 2 * B);
+  const ys = new Float64Array(nby + 2 * B);
+  for (let i = 0; i < xs.length; i++) xs[i] = ((i - B) * b + (b - 1) / 2 - (input.widthPx - 1) / 2) * p;
+  for (let i = 0; i < ys.length; i++) ys[i] = -((i - B) * b + (b - 1) / 2 - (input.heightPx - 1) / 2) * p;
+  const usedCells = Int32Array.from(used);
+  return { input, binning: b, nbx, nby, used: usedCells, data: Float64Array.from(data), xs, ys, pixelsPer: b * b, mode: 'stencil', needed: neededPoints(usedCells, nbx, xs.length, ys.length) };
+}
+
+/** The grid points (with the filter's border) that the filter reads for the used super-pixels. */
+function neededPoints(used: Int32Array, nbx: number, gx: number, gy: number): Uint8Array {
+  const out = new Uint8Array(gx * gy);
+  const span = 2 * PIXEL_FILTER_BORDER;
+  for (let u = 0; u < used.length; u++) {
+    const c = used[u] % nbx;
+    const r = (used[u] - c) / nbx;
+    for (let y = r; y <= r + span; y++) out.fill(1, y * gx + c, y * gx + c + span + 1);
   }
-  // Super-pixel (bx, by) covers columns bx·b … bx·b+b−1: its centre in camera metres relative to the frame centre.
-  const xs = new Float64Array(2 * nbx);
-  const ys = new Float64Array(2 * nby);
-  for (let bx = 0; bx < nbx; bx++) {
-    const xc = (bx * b + (b - 1) / 2 - (input.widthPx - 1) / 2) * p;
-    xs[2 * bx] = xc - GL2 * b * p;
-    xs[2 * bx + 1] = xc + GL2 * b * p;
-  }
-  for (let by = 0; by < nby; by++) {
-    const yc = -(by * b + (b - 1) / 2 - (input.heightPx - 1) / 2) * p;
-    ys[2 * by] = yc + GL2 * b * p;
-    ys[2 * by + 1] = yc - GL2 * b * p;
-  }
-  return { input, binning: b, nbx, nby, used: Int32Array.from(used), data: Float64Array.from(data), xs, ys, pixelsPer: b * b, mode: 'gl2' };
+  return out;
 }
 
 export interface ModelLayout {
@@ -226,9 +235,10 @@ export function evaluateModel(
   withJacobian: boolean,
   rimSamples: number[],
   /**
-   * 'exact': derivatives integrated over each super-pixel like the values. 'centre': derivatives at the
-   * super-pixel centres only (a quarter of the work); fine for Levenberg–Marquardt steps, whose residuals
-   * stay exact, not for the final covariance.
+   * For frames blurred by a finite source only: 'exact' blurs the derivatives at pixel level like the values;
+   * 'centre' takes them at the super-pixel centres, blurred at super-pixel level (cheaper; fine for
+   * Levenberg–Marquardt steps, whose residuals stay exact, not for the final covariance). Unblurred frames
+   * always get the filtered, pixel-integrated derivatives, at no extra cost.
    */
   jacobianMode: 'exact' | 'centre' = 'exact',
 ): ModelEvaluation {
@@ -255,13 +265,16 @@ export function evaluateModel(
     const centreDerivs: Float64Array[] = [];
     const xs = Float64Array.from(grid ? grid.xs : fr.xs, (v) => v - cx);
     const ys = Float64Array.from(grid ? grid.ys : fr.ys, (v) => v - cy);
-    const centreJacobian = withJacobian && jacobianMode === 'centre';
+    // Without a finite source the model is sampled once, at the super-pixel centres (and the filter's border),
+    // and values and derivatives are filtered alike: every Jacobian is the pixel-integrated one. A blurred
+    // frame in 'centre' mode takes its derivatives at super-pixel centres, blurred at super-pixel level.
+    const centreJacobian = withJacobian && jacobianMode === 'centre' && !!grid;
     const field = fastField(setup, aberrations, xs, ys, {
       nPhi: rimSamples[f],
       derivativeTerms: withJacobian && !centreJacobian ? layout.terms : undefined,
       centerDerivatives: withJacobian && !centreJacobian,
+      pointMask: grid ? null : fr.needed,
     });
-    const nx = xs.length;
     if (centreJacobian && grid) {
       // Blurred frame: derivatives at the super-pixel centres (with margin), blurred at super-pixel level.
       const cxs = Float64Array.from(grid.centreXs, (v) => v - cx);
@@ -274,28 +287,6 @@ export function evaluateModel(
         const d = new Float64Array(cf.re.length);
         for (let k = 0; k < d.length; k++) d[k] = 2 * (cf.re[k] * dRe[q][k] + cf.im[k] * dIm[q][k]);
         centreDerivs.push(grid.reduceCentre(d));
-      }
-    } else if (centreJacobian) {
-      // Derivatives on the super-pixel centres (for 'stencil' frames: the pixel centres without the border).
-      const cxs = fr.mode === 'stencil' ? xs.subarray(2, xs.length - 2) : Float64Array.from({ length: fr.nbx }, (_, i) => 0.5 * (xs[2 * i] + xs[2 * i + 1]));
-      const cys = fr.mode === 'stencil' ? ys.subarray(2, ys.length - 2) : Float64Array.from({ length: fr.nby }, (_, i) => 0.5 * (ys[2 * i] + ys[2 * i + 1]));
-      const cf = fastField(setup, aberrations, cxs, cys, { nPhi: rimSamples[f], derivativeTerms: layout.terms, centerDerivatives: true });
-      const sd = discOrders.length ? discShapeFieldDerivatives(setup, aberrations, cxs, cys, rimSamples[f], discOrders, rotation) : null;
-      const dRe = sd ? [...cf.dRe, ...sd.dRe] : cf.dRe;
-      const dIm = sd ? [...cf.dIm, ...sd.dIm] : cf.dIm;
-      const cnx = cxs.length;
-      for (let q = 0; q < dRe.length; q++) {
-        const dr = dRe[q], di = dIm[q];
-        // write the centre derivative of intensity into field.dRe[q] slots later read by the reducer below
-        const d = new Float64Array(fr.used.length);
-        for (let u = 0; u < fr.used.length; u++) {
-          const cell = fr.used[u];
-          const bx = cell % fr.nbx;
-          const by = (cell - bx) / fr.nbx;
-          const k = by * cnx + bx;
-          d[u] = 2 * (cf.re[k] * dr[k] + cf.im[k] * di[k]);
-        }
-        centreDerivs.push(d);
       }
     }
     // Sample intensities and their derivatives: I = |U|², dI = 2·Re(conj(U)·dU).
@@ -320,7 +311,7 @@ export function evaluateModel(
         }
       }
     }
-    const reduce = grid ? (v: Float64Array) => grid.reduce(v) : fr.mode === 'stencil' ? stencilReducer(fr) : gl2Reducer(fr, nx);
+    const reduce = grid ? (v: Float64Array) => grid.reduce(v) : stencilReducer(fr);
     const Iu = reduce(Is);
     const dIu = centreJacobian ? centreDerivs : dIs.map(reduce);
     if (jac && grid && shared.source >= 0) {
@@ -390,20 +381,21 @@ export function gl2Reducer(fr: Pick<BinnedFrame, 'used' | 'nbx'>, nx: number): (
   };
 }
 
-/** The separable 5-tap pixel-average filter on the bordered pixel-centre grid, read at the used pixels. */
+/** The separable filter PIXEL_FILTER on the bordered super-pixel-centre grid, read at the used super-pixels. */
 export function stencilReducer(fr: Pick<BinnedFrame, 'used' | 'nbx' | 'xs' | 'ys'>): (v: Float64Array) => Float64Array {
   const gx = fr.xs.length;
   const gy = fr.ys.length;
   const w = PIXEL_FILTER;
+  const span = w.length;
+  const W = gx - (span - 1);
   return (v) => {
     // filter along x for every grid row, at interior columns
-    const W = gx - 4;
     const tmp = new Float64Array(gy * W);
     for (let r = 0; r < gy; r++) {
       const o = r * gx;
       for (let c = 0; c < W; c++) {
         const k = o + c;
-        tmp[r * W + c] = w[0] * v[k] + w[1] * v[k + 1] + w[2] * v[k + 2] + w[3] * v[k + 3] + w[4] * v[k + 4];
+        tmp[r * W + c] = w[0] * v[k] + w[1] * v[k + 1] + w[2] * v[k + 2] + w[3] * v[k + 3] + w[4] * v[k + 4] + w[5] * v[k + 5] + w[6] * v[k + 6];
       }
     }
     const out = new Float64Array(fr.used.length);
@@ -411,7 +403,8 @@ export function stencilReducer(fr: Pick<BinnedFrame, 'used' | 'nbx' | 'xs' | 'ys
       const cell = fr.used[u];
       const c = cell % fr.nbx;
       const r = (cell - c) / fr.nbx;
-      out[u] = w[0] * tmp[r * W + c] + w[1] * tmp[(r + 1) * W + c] + w[2] * tmp[(r + 2) * W + c] + w[3] * tmp[(r + 3) * W + c] + w[4] * tmp[(r + 4) * W + c];
+      const k = r * W + c;
+      out[u] = w[0] * tmp[k] + w[1] * tmp[k + W] + w[2] * tmp[k + 2 * W] + w[3] * tmp[k + 3 * W] + w[4] * tmp[k + 4 * W] + w[5] * tmp[k + 5 * W] + w[6] * tmp[k + 6 * W];
     }
     return out;
   };

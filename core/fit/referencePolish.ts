@@ -13,7 +13,7 @@
 import { effectiveDistanceM } from '../optics/geometry.ts';
 import { fastField } from '../optics/fast/rimModel.ts';
 import { referenceIntensity } from '../optics/reference/index.ts';
-import { gl2Reducer, modelAberrations, modelSetup, stencilReducer, type BinnedFrame, type FitFrameInput, type ModelLayout } from './frameModel.ts';
+import { modelAberrations, modelSetup, stencilReducer, type BinnedFrame, type FitFrameInput, type ModelLayout } from './frameModel.ts';
 import { blurredGrid, sourceBlurDiameterM } from './sourceBlur.ts';
 
 export type PolishMode = 'auto' | 'always' | 'never';
@@ -56,11 +56,11 @@ export function referenceCorrections(
     const grid = blurM > 0 ? blurredGrid(fr, blurM, fr.blurLevel ?? 'pixel', blurM) : null;
     const xs = Float64Array.from(grid ? grid.xs : fr.xs, (v) => v - cx);
     const ys = Float64Array.from(grid ? grid.ys : fr.ys, (v) => v - cy);
-    const reduce = grid ? (v: Float64Array) => grid.reduce(v) : fr.mode === 'stencil' ? stencilReducer(fr) : gl2Reducer(fr, xs.length);
+    const reduce = grid ? (v: Float64Array) => grid.reduce(v) : stencilReducer(fr);
     const ref = referenceIntensity(setup, aberrations, xs, ys, {
       onProgress: onProgress ? (g) => onProgress((done + 0.9 * g) / todo) : undefined,
     });
-    const field = fastField(setup, aberrations, xs, ys, { nPhi: rimSamples[f] });
+    const field = fastField(setup, aberrations, xs, ys, { nPhi: rimSamples[f], pointMask: grid ? null : fr.needed });
     const fast = new Float64Array(field.re.length);
     for (let k = 0; k < fast.length; k++) fast[k] = field.re[k] * field.re[k] + field.im[k] * field.im[k];
     done++;

@@ -6,7 +6,7 @@
  *
  * Two levels:
  *  - 'pixel' (the fit's final stage): the model is sampled at pixel centres on the frame's binned rectangle
- *    plus the kernel's margin, pixel-averaged by the 5-tap filter (frameModel PIXEL_FILTER), blurred pixel by
+ *    plus the kernel's margin, pixel-averaged by the 7-tap filter (frameModel PIXEL_FILTER), blurred pixel by
  *    pixel exactly as the simulator does, and binned — the simulator's rule to the pixel;
  *  - 'super' (the coarse stages, only to find the basin): super-pixel means (2×2 Gauss–Legendre) blurred with
  *    the kernel scaled to super-pixels. Cheaper, approximate.
@@ -16,7 +16,7 @@
 import type { BenchSetup } from '../setup/types.ts';
 import { benchFigures } from '../optics/geometry.ts';
 import { blurMarginPx, convolveWithDisc } from '../camera/blur.ts';
-import { gl2Reducer, stencilReducer, type BinnedFrame } from './frameModel.ts';
+import { gl2Reducer, PIXEL_FILTER_BORDER, stencilReducer, type BinnedFrame } from './frameModel.ts';
 
 export type BlurLevel = 'pixel' | 'super';
 
@@ -91,14 +91,15 @@ export function blurredGrid(fr: BinnedFrame, diameterM: number, level: BlurLevel
     return { xs, ys, reduce, centreXs, centreYs, reduceCentre };
   }
 
-  // --- pixel level: pixel centres over the binned rectangle plus the kernel margin, plus the 2-pixel filter border
+  // --- pixel level: pixel centres over the binned rectangle plus the kernel margin, plus the filter's border
   const m = blurMarginPx(Math.max(maxDiameterM, diameterM) / p);
   const W = nbx * b + 2 * m;
   const H = nby * b + 2 * m;
-  const xs = new Float64Array(W + 4);
-  const ys = new Float64Array(H + 4);
-  for (let i = 0; i < W + 4; i++) xs[i] = (i - m - 2 - (inp.widthPx - 1) / 2) * p;
-  for (let i = 0; i < H + 4; i++) ys[i] = -(i - m - 2 - (inp.heightPx - 1) / 2) * p;
+  const B = PIXEL_FILTER_BORDER;
+  const xs = new Float64Array(W + 2 * B);
+  const ys = new Float64Array(H + 2 * B);
+  for (let i = 0; i < W + 2 * B; i++) xs[i] = (i - m - B - (inp.widthPx - 1) / 2) * p;
+  for (let i = 0; i < H + 2 * B; i++) ys[i] = -(i - m - B - (inp.heightPx - 1) / 2) * p;
   const pixelMeans = stencilReducer({ used: allCells(W * H), nbx: W, xs, ys });
   const reduce = (v: Float64Array, d = diameterM) => {
     const blurred = convolveWithDisc(pixelMeans(v), W, H, d / p);

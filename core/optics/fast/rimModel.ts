@@ -30,6 +30,11 @@ export interface FastModelOptions {
   derivativeTerms?: readonly number[];
   /** Also differentiate with respect to the camera point (dU/dPx, dU/dPy). */
   centerDerivatives?: boolean;
+  /**
+   * Which camera points to compute (row-major over xsM × ysM, 1 = compute); the others are left at 0.
+   * For callers that need only part of the grid (a circular region of interest).
+   */
+  pointMask?: Uint8Array | null;
 }
 
 export interface FastFieldResult {
@@ -168,6 +173,8 @@ export function fastField(
   const n = options.nPhi ?? chooseRimSamples(setup, aberrations, xsM, ysM);
   const nx = xsM.length;
   const ny = ysM.length;
+  const mask = options.pointMask ?? null;
+  if (mask && mask.length !== nx * ny) throw new RangeError(`pointMask has ${mask.length} entries for ${nx}×${ny} points`);
   const dphi = (2 * Math.PI) / n;
   const t = buildRimTables(setup, poly, n, k, lp);
 
@@ -239,7 +246,7 @@ export function fastField(
   const rimIm = new Float64Array(nx * ny);
   if (np > 0) {
     const tables = derivativeTables(setup, t, terms, lambda, k, kap, n, nx, ny, X, Y, fxs, fys, lp, wantCenter);
-    rimSumsWithDerivatives(X, Y, tables, n, nx, ny, rimRe, rimIm, dRe, dIm);
+    rimSumsWithDerivatives(X, Y, tables, n, nx, ny, rimRe, rimIm, dRe, dIm, mask);
   }
   // Next-order correction for non-quadratic wavefronts, blended out near the shadow edge where its
   // expansion (in powers of 1/s) fails: full weight when the camera point is more than 2·d0 from the rim
@@ -252,8 +259,8 @@ export function fastField(
     corrRe = new Float64Array(nx * ny);
     corrIm = new Float64Array(nx * ny);
     corrEps = new Float64Array(nx * ny);
-    rimSumsThirdOrder(X, Y, third, n, nx, ny, corrRe, corrIm, corrEps, np === 0 ? rimRe : null, np === 0 ? rimIm : null);
-  } else if (np === 0) rimSums(X, Y, n, nx, ny, rimRe, rimIm);
+    rimSumsThirdOrder(X, Y, third, n, nx, ny, corrRe, corrIm, corrEps, np === 0 ? rimRe : null, np === 0 ? rimIm : null, mask);
+  } else if (np === 0) rimSums(X, Y, n, nx, ny, rimRe, rimIm, mask);
   const d0 = (12 * setup.disc.radiusM) / n;
 
   const termPolys = terms.map((jz) => ({
@@ -274,6 +281,7 @@ export function fastField(
     haveStart = false;
     for (let ix = 0; ix < nx; ix++) {
       const pix = iy * nx + ix;
+      if (mask && !mask[pix]) continue;
       // ∫∫_outside = −Δφ·Σh − Σ_near R·π·cot(Np/2) + U_all·(n_far_out/2 + n_near/4)
       const fx = fxs[ix], fy = fys[iy];
       let sumR = rimRe[pix], sumI = rimIm[pix];
@@ -523,12 +531,14 @@ function rimSumsWithDerivatives(
   outIm: Float64Array,
   dRe: Float64Array[],
   dIm: Float64Array[],
+  mask: Uint8Array | null,
 ): void {
   const nT = D.nTerms;
   const np = nT + (D.center ? 2 : 0);
   const acc = new Float64Array(2 * np);
   for (let iy = 0; iy < ny; iy++) {
     for (let ix = 0; ix < nx; ix++) {
+      if (mask && !mask[iy * nx + ix]) continue;
       let sr = 0, si = 0;
       acc.fill(0);
       for (let j = 0; j < n; j++) {
@@ -607,10 +617,11 @@ function rimSumsWithDerivatives(
  * XT[(ix·n + j)·10 + ·] = AX (2), n_x (2), s_xx (2), 2·M_xy·d_x (2), d_x (2);
  * YT[(iy·n + j)·8 + ·] = E_y (2), n_y (2), s_yy (2), d_y (2).
  */
-function rimSums(XT: Float64Array, YT: Float64Array, n: number, nx: number, ny: number, outRe: Float64Array, outIm: Float64Array): void {
+function rimSums(XT: Float64Array, YT: Float64Array, n: number, nx: number, ny: number, outRe: Float64Array, outIm: Float64Array, mask: Uint8Array | null): void {
   for (let iy = 0; iy < ny; iy++) {
     const yo = iy * n * 8;
     for (let ix = 0; ix < nx; ix++) {
+      if (mask && !mask[iy * nx + ix]) continue;
       let xa = ix * n * 10;
       let yb = yo;
       let sr = 0;
@@ -703,10 +714,12 @@ function rimSumsThirdOrder(
   /** when given, also the first-order sums (the same pass) */
   firstRe: Float64Array | null = null,
   firstIm: Float64Array | null = null,
+  mask: Uint8Array | null = null,
 ): void {
   for (let iy = 0; iy < ny; iy++) {
     const yo = iy * n * 8;
     for (let ix = 0; ix < nx; ix++) {
+      if (mask && !mask[iy * nx + ix]) continue;
       let xa = ix * n * 10;
       let yb = yo;
       let co = 0;
