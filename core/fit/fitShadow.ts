@@ -329,6 +329,12 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
       // Steps below 1 % of σ change nothing that matters; the residuals are exact, the step Jacobian is not.
       stepTolerance: 0.01,
       chi2Tolerance: 1e-8,
+      chi2AbsoluteTolerance: 0.01,
+      // Derivatives cost about twice the values; from a close start the kept Jacobian serves several steps.
+      reuseJacobian: true,
+      // The step Jacobian leaves out the third-order (coma) correction's derivatives, good to about 0.2σ near
+      // the minimum: a rejected step smaller than that ends the fit instead of raising λ step by step.
+      rejectedStepTolerance: 0.2,
       onIteration: (it) => {
         if (progress && progress(Math.min(from + (span * it) / 12, from + span), 'fitting') === false) return false;
         return true;
@@ -425,13 +431,17 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
       noiseNote = `the camera noise was estimated from the fit residuals (gain ${est.gain.toPrecision(3)} counts per electron, read noise ${est.readNoise.toPrecision(3)} counts): χ²/dof is ≈ 1 by construction; give --gain and --read-noise, or dark frames, for an independent check`;
     }
   }
-  refreshSigma(fine, sol.params);
-  sol = runLM(fine, sol.params, 0.8, 0.05);
   // --- reference-model polish where the fast model's edge error matters
   const polishMode = options.referencePolish ?? 'auto';
-  const polishWhich = inputs.map(
-    (f, i) => polishMode === 'always' || (polishMode === 'auto' && regionReachesShadowEdge(f, [sol.params[nz + 4 * i], sol.params[nz + 4 * i + 1]])),
-  );
+  const polishFor = (q: Float64Array) =>
+    inputs.map((f, i) => polishMode === 'always' || (polishMode === 'auto' && regionReachesShadowEdge(f, [q[nz + 4 * i], q[nz + 4 * i + 1]])));
+  // The weights are refreshed at the solution and the fit repeated; the polish does both itself, so this
+  // round is left to it when the noise model did not change.
+  if (options.estimateNoise || !polishFor(sol.params).some(Boolean)) {
+    refreshSigma(fine, sol.params);
+    sol = runLM(fine, sol.params, 0.8, 0.05);
+  }
+  const polishWhich = polishFor(sol.params);
   let polishNote: string | null = null;
   // A fit that does not describe the frame (wrong setup, wrong minimum) gains nothing from the polish.
   const chi2BeforePolish = sol.chi2 / Math.max(1, fine.data.length - np);
@@ -470,8 +480,9 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     }
   }
   step(0.9, 'uncertainties');
-  // The steps used centre-sampled derivatives; the covariance takes the pixel-integrated ones.
-  {
+  // A blurred frame's steps used centre-sampled derivatives; the covariance takes the pixel-integrated ones.
+  // Unblurred frames already have them: the fit ends with a Jacobian evaluated afresh at the solution.
+  if (layout.freeSourceSize || inputs.some((f) => sourceBlurDiameterM(f.setup) > 0)) {
     const { r, J } = makeWeighted(problem, 'exact').evaluate(sol.params, true);
     sol = { ...sol, normalMatrix: normalEquations(J!, r, np).A };
   }

@@ -22,7 +22,28 @@ export interface LMOptions {
   chi2Tolerance?: number;
   /** Stop when every step component is below this fraction of its current 1σ estimate. */
   stepTolerance?: number;
+  /**
+   * Stop when a step lowers χ², or is predicted to lower it, by less than this absolute amount (default 0:
+   * not used). With residuals normalised by their σ, Δχ² < 0.01 leaves the parameters within about 0.1σ of
+   * the minimum (Press et al., Numerical Recipes, §15.5: iterating until χ² changes by a negligible amount,
+   * well below 1, is all the statistics can use).
+   */
+  chi2AbsoluteTolerance?: number;
   initialLambda?: number;
+  /**
+   * Keep the Jacobian of an earlier point while steps are accepted (a chord, or simplified Newton, method;
+   * default false): an accepted step costs one evaluation of the residuals only, and the gradient Jᵀr is
+   * formed with the kept J. The Jacobian is evaluated afresh when a step is rejected and before the fit is
+   * declared converged, so the result (and its normal matrix) is that of a fresh Jacobian at the solution.
+   * Cheaper when derivatives cost much more than values and the start is already close.
+   */
+  reuseJacobian?: boolean;
+  /**
+   * Stop (converged) when a step that raised χ² was below this fraction of 1σ in every component (default:
+   * stepTolerance). For a Jacobian that is approximate at that level: χ² cannot be lowered along its steps
+   * any more, and shrinking them further only spends evaluations.
+   */
+  rejectedStepTolerance?: number;
   /** Called after each iteration with (iteration, χ²); return false to cancel. */
   onIteration?: (iteration: number, chi2: number) => boolean | void;
 }
@@ -109,11 +130,25 @@ export function invertSPD(A: Float64Array, n: number): Float64Array | null {
   return inv;
 }
 
+/** Jᵀr for a row-major Jacobian. */
+function gradient(J: Float64Array, r: Float64Array, n: number): Float64Array {
+  const g = new Float64Array(n);
+  for (let i = 0; i < r.length; i++) {
+    const o = i * n;
+    const ri = r[i];
+    for (let a = 0; a < n; a++) g[a] += J[o + a] * ri;
+  }
+  return g;
+}
+
 export function levenbergMarquardt(problem: WeightedProblem, start: Float64Array, options: LMOptions = {}): LMResult {
   const n = problem.nParams;
   const maxIt = options.maxIterations ?? 60;
   const tolChi2 = options.chi2Tolerance ?? 1e-10;
   const tolStep = options.stepTolerance ?? 1e-4;
+  const tolRejected = Math.max(tolStep, options.rejectedStepTolerance ?? tolStep);
+  const reuse = !!options.reuseJacobian;
+  const tolAbs = options.chi2AbsoluteTolerance ?? 0;
   let lambda = options.initialLambda ?? 1e-3;
   let p = Float64Array.from(start);
   let evals = 1;
@@ -123,11 +158,29 @@ export function levenbergMarquardt(problem: WeightedProblem, start: Float64Array
     return { params: p, chi2, normalMatrix: new Float64Array(n * n), iterations: 0, termination: 'non-finite', evaluations: evals };
   }
   let ne = normalEquations(J, r, n);
+  // Whether J was evaluated at p (false after an accepted step with a kept Jacobian).
+  let fresh = true;
+  const refresh = (): boolean => {
+    const full = problem.evaluate(p, true);
+    evals++;
+    if (!full.J || !Number.isFinite(chi2Of(full.r))) return false;
+    r = full.r;
+    J = full.J;
+    chi2 = chi2Of(r);
+    ne = normalEquations(J, r, n);
+    fresh = true;
+    return true;
+  };
+  // Every component of a step below tol × its 1σ (from the undamped normal matrix).
+  const below = (delta: Float64Array, tol: number): boolean => {
+    for (let a = 0; a < n; a++) if (Math.abs(delta[a]) > tol / Math.sqrt(Math.max(ne.A[a * n + a], 1e-300))) return false;
+    return true;
+  };
   let termination: Termination = 'iteration limit';
   let it = 0;
   for (it = 1; it <= maxIt; it++) {
     let accepted = false;
-    let stepSmall = false;
+    let done = false;
     while (lambda < 1e12) {
       const A = Float64Array.from(ne.A);
       for (let a = 0; a < n; a++) A[a * n + a] += lambda * Math.max(ne.A[a * n + a], 1e-300);
@@ -136,29 +189,56 @@ export function levenbergMarquardt(problem: WeightedProblem, start: Float64Array
         lambda *= 10;
         continue;
       }
+      // A step below the tolerance everywhere changes nothing that matters: converged, without evaluating it
+      // (at the minimum, rounding-level changes of χ² would otherwise reject it and raise λ to its limit).
+      // Predicted decrease of χ² for the step: 2δᵀg − δᵀAδ (A undamped).
+      let predicted = 0;
+      for (let a = 0; a < n; a++) {
+        let ad = 0;
+        for (let b = 0; b < n; b++) ad += ne.A[a * n + b] * delta[b];
+        predicted += delta[a] * (2 * ne.g[a] - ad);
+      }
+      if (below(delta, tolStep) || predicted < tolAbs) {
+        if (!fresh && refresh()) continue;
+        done = true;
+        break;
+      }
       const trial = new Float64Array(n);
       for (let a = 0; a < n; a++) trial[a] = p[a] + delta[a];
       evals++;
-      const ev = problem.evaluate(trial, false);
+      const ev = problem.evaluate(trial, !reuse);
       const c2 = chi2Of(ev.r);
       if (Number.isFinite(c2) && c2 <= chi2) {
         const rel = (chi2 - c2) / Math.max(chi2, 1e-300);
-        // step size against the current 1σ (from the undamped normal matrix)
-        stepSmall = true;
-        for (let a = 0; a < n; a++) {
-          const sig = 1 / Math.sqrt(Math.max(ne.A[a * n + a], 1e-300));
-          if (Math.abs(delta[a]) > tolStep * sig) stepSmall = false;
-        }
+        const stepSmall = below(delta, tolStep);
+        const chi2Before = chi2;
         p = trial;
-        const full = problem.evaluate(p, true);
-        evals++;
-        r = full.r;
-        J = full.J;
-        chi2 = chi2Of(r);
-        ne = normalEquations(J!, r, n);
+        r = ev.r;
+        chi2 = c2;
+        if (reuse || !ev.J) {
+          if (reuse) {
+            ne = { A: ne.A, g: gradient(J!, r, n) };
+            fresh = false;
+          } else if (!refresh()) break;
+        } else {
+          J = ev.J;
+          ne = normalEquations(J, r, n);
+        }
         lambda = Math.max(lambda / 10, 1e-12);
         accepted = true;
-        if (rel < tolChi2 || stepSmall) termination = 'converged';
+        if (rel < tolChi2 || stepSmall || chi2Before - c2 < tolAbs) {
+          // Converged with a kept Jacobian: evaluate it afresh at p and iterate once more with it.
+          if (!fresh) refresh();
+          else done = true;
+        }
+        break;
+      }
+      // A rejected step with a kept Jacobian: evaluate it afresh at p and try again at the same damping.
+      if (!fresh && Number.isFinite(chi2)) {
+        if (refresh()) continue;
+      }
+      if (Number.isFinite(c2) && below(delta, tolRejected)) {
+        done = true;
         break;
       }
       if (!Number.isFinite(c2) && lambda > 1e8) break;
@@ -168,13 +248,17 @@ export function levenbergMarquardt(problem: WeightedProblem, start: Float64Array
       termination = 'cancelled';
       break;
     }
+    if (done) {
+      termination = 'converged';
+      break;
+    }
     if (!accepted) {
       // No downhill step at any damping: we are at a minimum to machine precision, or stuck.
       termination = lambda >= 1e12 ? 'converged' : 'stalled';
       break;
     }
-    if (termination === 'converged') break;
   }
   if (!Number.isFinite(chi2)) termination = 'non-finite';
+  if (!fresh && termination !== 'cancelled') refresh();
   return { params: p, chi2, normalMatrix: ne.A, iterations: Math.min(it, maxIt), termination, evaluations: evals };
 }

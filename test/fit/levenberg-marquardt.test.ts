@@ -45,6 +45,46 @@ describe('Levenberg–Marquardt on NIST StRD Misra1a', () => {
       expect(Math.sqrt(cov[3] * s2) / CERTIFIED.sd2 - 1).toBeCloseTo(0, 3);
     });
   }
+  it('reaches the same certified values keeping the Jacobian between steps, with a fresh normal matrix at the end', () => {
+    let jacobians = 0;
+    let values = 0;
+    const counting = {
+      nParams: 2,
+      evaluate(p: Float64Array, withJacobian: boolean) {
+        if (withJacobian) jacobians++;
+        else values++;
+        return problem.evaluate(p, withJacobian);
+      },
+    };
+    const res = levenbergMarquardt(counting, Float64Array.from([250, 5e-4]), { maxIterations: 200, chi2Tolerance: 1e-15, stepTolerance: 1e-9, reuseJacobian: true });
+    expect(res.termination).toBe('converged');
+    expect(res.params[0] / CERTIFIED.b1 - 1).toBeCloseTo(0, 6);
+    expect(res.params[1] / CERTIFIED.b2 - 1).toBeCloseTo(0, 6);
+    const cov = invertSPD(res.normalMatrix, 2)!;
+    const s2 = res.chi2 / (x.length - 2);
+    expect(Math.sqrt(cov[0] * s2) / CERTIFIED.sd1 - 1).toBeCloseTo(0, 3);
+    expect(Math.sqrt(cov[3] * s2) / CERTIFIED.sd2 - 1).toBeCloseTo(0, 3);
+    // Accepted steps reuse the Jacobian: fewer derivative evaluations than value evaluations.
+    expect(jacobians).toBeLessThan(values);
+  });
+
+  it('stops on a negligible absolute change of χ² (normalised residuals)', () => {
+    // Misra1a with residuals divided by s = √(RSS/(n − p)), so that χ² counts in units of the noise.
+    const s = Math.sqrt(CERTIFIED.rss / (x.length - 2));
+    const scaled = {
+      nParams: 2,
+      evaluate(p: Float64Array, withJacobian: boolean) {
+        const { r, J } = problem.evaluate(p, withJacobian);
+        return { r: r.map((v) => v / s), J: J ? J.map((v) => v / s) : null };
+      },
+    };
+    const res = levenbergMarquardt(scaled, Float64Array.from([250, 5e-4]), { maxIterations: 200, chi2Tolerance: 0, stepTolerance: 0, chi2AbsoluteTolerance: 0.01 });
+    expect(res.termination).toBe('converged');
+    // Δχ² < 0.01 leaves each parameter within about 0.1 of its certified standard deviation.
+    expect(Math.abs(res.params[0] - CERTIFIED.b1) / CERTIFIED.sd1).toBeLessThan(0.1);
+    expect(Math.abs(res.params[1] - CERTIFIED.b2) / CERTIFIED.sd2).toBeLessThan(0.1);
+  });
+
   it('reports a non-finite model instead of returning nonsense', () => {
     const bad = { nParams: 1, evaluate: () => ({ r: Float64Array.from([NaN]), J: Float64Array.from([1]) }) };
     expect(levenbergMarquardt(bad, Float64Array.from([1])).termination).toBe('non-finite');
