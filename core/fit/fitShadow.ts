@@ -12,6 +12,7 @@ import { effectiveDistanceM } from '../optics/geometry.ts';
 import { levenbergMarquardt, invertSPD, normalEquations, type LMResult } from './levenbergMarquardt.ts';
 import {
   binFrame,
+  ringPeriodM,
   evaluateModel,
   parameterCount,
   parameterNames,
@@ -94,15 +95,10 @@ function cancelledError(): Error {
   return e;
 }
 
-/** Ring period on the camera, λL/(2a): the finest structure inside the shadow. */
-function ringPeriodM(f: FitFrameInput): number {
-  return (f.setup.wavelengthM * f.setup.camera.distanceM) / (2 * f.setup.disc.radiusM);
-}
-
 /** Super-pixel size the fit picks by default: about 1/5 of the ring period, 1 to 16 pixels. */
 export function autoBinning(frames: FitFrameInput[]): number {
   let b = 16;
-  for (const f of frames) b = Math.min(b, Math.floor(ringPeriodM(f) / (5 * f.setup.camera.pixelPitchM)));
+  for (const f of frames) b = Math.min(b, Math.floor(ringPeriodM(f.setup) / (5 * f.setup.camera.pixelPitchM)));
   return Math.max(1, b);
 }
 
@@ -234,8 +230,8 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     const spotM = (2 * 2.404825557695773 * f0.camera.distanceM * f0.wavelengthM) / (2 * Math.PI * f0.disc.radiusM);
     priors.push({ index: shared.source, sigma: (spotM * Math.abs(f0.beam.curvatureRadiusM)) / f0.camera.distanceM, centre: 0 });
   }
-  const makeProblem = (b: number): Problem => {
-    const frames = inputs.map((f) => binFrame(f, b));
+  const makeProblem = (b: number, maxSubcells?: number): Problem => {
+    const frames = inputs.map((f) => binFrame(f, b, maxSubcells));
     for (let f = 0; f < frames.length; f++) {
       if (frames[f].used.length < 4 * np) throw new FitInputError(`frame ${f + 1}: only ${frames[f].used.length} usable super-pixels in the region of interest`);
     }
@@ -254,7 +250,9 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   const coarseBinning = fine.data.length > 2500 ? Math.min(coarsen(2500), 2 * binning + 2) : binning;
   const coarse = coarseBinning === binning ? fine : makeProblem(coarseBinning);
   const searchBinning = Math.max(coarseBinning, coarsen(900));
-  const search = searchBinning === coarseBinning ? coarse : makeProblem(searchBinning);
+  // The defocus search reads the ring envelope: 2×2 sub-cells per super-pixel are enough for it, even where
+  // its super-pixels span more than a ring period (the model is then only approximate).
+  const search = searchBinning === coarseBinning ? coarse : makeProblem(searchBinning, 2);
   // The coarse stages blur a finite source at super-pixel level (cheaper; they only find the basin).
   for (const pr of [coarse, search]) if (pr !== fine) pr.frames.forEach((f) => (f.blurLevel = 'super'));
 
@@ -330,8 +328,9 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
       stepTolerance: 0.01,
       chi2Tolerance: 1e-8,
       chi2AbsoluteTolerance: 0.01,
-      // Derivatives cost about twice the values; from a close start the kept Jacobian serves several steps.
-      reuseJacobian: true,
+      // Derivatives cost about twice the values; on the final binning, starting close, the kept Jacobian
+      // serves several steps (the coarse stages start far away and are cheap).
+      reuseJacobian: pr === fine,
       // The step Jacobian leaves out the third-order (coma) correction's derivatives, good to about 0.2σ near
       // the minimum: a rejected step smaller than that ends the fit instead of raising λ step by step.
       rejectedStepTolerance: 0.2,
@@ -710,7 +709,7 @@ function residualStructure(pr: Problem, p: Float64Array): { statistic: number; g
     const inp = fr.input;
     const pitch = inp.setup.camera.pixelPitchM;
     const cx = p[nz + 4 * f], cy = p[nz + 4 * f + 1];
-    const ring = ringPeriodM(inp) / 2;
+    const ring = ringPeriodM(inp.setup) / 2;
     for (let u = 0; u < fr.used.length; u++, row++) {
       const cell = fr.used[u];
       const bx = cell % fr.nbx;

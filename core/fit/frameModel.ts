@@ -58,11 +58,14 @@ export interface BinnedFrame {
   /** Pixels per super-pixel that are unmasked (all for used ones). */
   pixelsPer: number;
   /**
-   * How the model integrates over a super-pixel: the model is sampled at the super-pixel centres on a grid
-   * with a border of PIXEL_FILTER_BORDER samples (xs, ys hold nbx + 2·border and nby + 2·border centres) and
-   * averaged by the separable filter PIXEL_FILTER.
+   * How the model integrates over a super-pixel: each super-pixel is split into s×s sub-cells
+   * (s = `subcells`, 1 unless the super-pixel spans more than about a quarter of the ring period); the model is
+   * sampled at the sub-cell centres on a grid with a border of PIXEL_FILTER_BORDER samples (xs, ys hold
+   * nbx·s + 2·border and nby·s + 2·border centres), averaged over each sub-cell by the separable filter
+   * PIXEL_FILTER, and the sub-cells are averaged.
    */
   mode: 'stencil';
+  subcells: number;
   /** Which points of the xs × ys grid the used super-pixels need (1 = needed), row-major. */
   needed: Uint8Array;
   /**
@@ -89,8 +92,11 @@ export const PIXEL_FILTER: readonly number[] = [PF3, PF2, PF1, 1 - 2 * (PF1 + PF
 /** Samples on each side of the super-pixel grid that the filter reads. */
 export const PIXEL_FILTER_BORDER = 3;
 
-/** Bin a frame into b×b super-pixels inside the region; super-pixels with any masked pixel are dropped. */
-export function binFrame(input: FitFrameInput, binning: number): BinnedFrame {
+/**
+ * Bin a frame into b×b super-pixels inside the region; super-pixels with any masked pixel are dropped.
+ * `maxSubcells` caps the sub-cells per super-pixel and axis (see `subcells`).
+ */
+export function binFrame(input: FitFrameInput, binning: number, maxSubcells = 4): BinnedFrame {
   const b = Math.max(1, Math.floor(binning));
   const nbx = Math.floor(input.widthPx / b);
   const nby = Math.floor(input.heightPx / b);
@@ -121,24 +127,53 @@ export function binFrame(input: FitFrameInput, binning: number): BinnedFrame {
       data.push(s / (b * b));
     }
   }
-  // Super-pixel (bx, by) covers columns bx·b … bx·b+b−1: its centre in camera metres relative to the frame
-  // centre. The grid holds every super-pixel centre plus the filter's border.
+  // Super-pixel (bx, by) covers columns bx·b … bx·b+b−1 (pixel c spans c − ½ … c + ½); sub-cell i (of s per
+  // super-pixel, counted from the first super-pixel, negative in the border) is centred on
+  // −½ + (i + ½)·b/s, in camera metres relative to the frame centre.
+  const sub = Math.min(Math.max(1, Math.floor(maxSubcells)), subcellsFor(input.setup, b));
   const B = PIXEL_FILTER_BORDER;
-  const xs = new Float64Array(nbx + 2 * B);
-  const ys = new Float64Array(nby + 2 * B);
-  for (let i = 0; i < xs.length; i++) xs[i] = ((i - B) * b + (b - 1) / 2 - (input.widthPx - 1) / 2) * p;
-  for (let i = 0; i < ys.length; i++) ys[i] = -((i - B) * b + (b - 1) / 2 - (input.heightPx - 1) / 2) * p;
+  const xs = new Float64Array(nbx * sub + 2 * B);
+  const ys = new Float64Array(nby * sub + 2 * B);
+  for (let i = 0; i < xs.length; i++) xs[i] = (-0.5 + (i - B + 0.5) * (b / sub) - (input.widthPx - 1) / 2) * p;
+  for (let i = 0; i < ys.length; i++) ys[i] = -(-0.5 + (i - B + 0.5) * (b / sub) - (input.heightPx - 1) / 2) * p;
   const usedCells = Int32Array.from(used);
-  return { input, binning: b, nbx, nby, used: usedCells, data: Float64Array.from(data), xs, ys, pixelsPer: b * b, mode: 'stencil', needed: neededPoints(usedCells, nbx, xs.length, ys.length) };
+  return {
+    input,
+    binning: b,
+    nbx,
+    nby,
+    used: usedCells,
+    data: Float64Array.from(data),
+    xs,
+    ys,
+    pixelsPer: b * b,
+    mode: 'stencil',
+    subcells: sub,
+    needed: neededPoints(usedCells, nbx, sub, xs.length, ys.length),
+  };
+}
+
+/** Ring period on the camera, λL/(2a): the finest structure inside the shadow (any beam curvature). */
+export function ringPeriodM(setup: BenchSetup): number {
+  return (setup.wavelengthM * setup.camera.distanceM) / (2 * setup.disc.radiusM);
+}
+
+/**
+ * Sub-cells per super-pixel and axis: enough that the ring period spans at least 2π/1.7 ≈ 3.7 sub-cells, where
+ * PIXEL_FILTER is accurate to 1e-4; at most 4.
+ */
+export function subcellsFor(setup: BenchSetup, binning: number): number {
+  const theta = (2 * Math.PI * binning * setup.camera.pixelPitchM) / ringPeriodM(setup);
+  return Math.min(4, Math.max(1, Math.ceil(theta / 1.7)));
 }
 
 /** The grid points (with the filter's border) that the filter reads for the used super-pixels. */
-function neededPoints(used: Int32Array, nbx: number, gx: number, gy: number): Uint8Array {
+function neededPoints(used: Int32Array, nbx: number, sub: number, gx: number, gy: number): Uint8Array {
   const out = new Uint8Array(gx * gy);
-  const span = 2 * PIXEL_FILTER_BORDER;
+  const span = sub - 1 + 2 * PIXEL_FILTER_BORDER;
   for (let u = 0; u < used.length; u++) {
-    const c = used[u] % nbx;
-    const r = (used[u] - c) / nbx;
+    const c = (used[u] % nbx) * sub;
+    const r = Math.floor(used[u] / nbx) * sub;
     for (let y = r; y <= r + span; y++) out.fill(1, y * gx + c, y * gx + c + span + 1);
   }
   return out;
@@ -381,13 +416,18 @@ export function gl2Reducer(fr: Pick<BinnedFrame, 'used' | 'nbx'>, nx: number): (
   };
 }
 
-/** The separable filter PIXEL_FILTER on the bordered super-pixel-centre grid, read at the used super-pixels. */
-export function stencilReducer(fr: Pick<BinnedFrame, 'used' | 'nbx' | 'xs' | 'ys'>): (v: Float64Array) => Float64Array {
+/**
+ * The separable filter PIXEL_FILTER on the bordered sub-cell grid, then the mean of each used super-pixel's
+ * s×s sub-cells (s = `subcells`, default 1).
+ */
+export function stencilReducer(fr: Pick<BinnedFrame, 'used' | 'nbx' | 'xs' | 'ys'> & { subcells?: number }): (v: Float64Array) => Float64Array {
   const gx = fr.xs.length;
   const gy = fr.ys.length;
   const w = PIXEL_FILTER;
   const span = w.length;
   const W = gx - (span - 1);
+  const sub = fr.subcells ?? 1;
+  const inv = 1 / (sub * sub);
   return (v) => {
     // filter along x for every grid row, at interior columns
     const tmp = new Float64Array(gy * W);
@@ -401,10 +441,16 @@ export function stencilReducer(fr: Pick<BinnedFrame, 'used' | 'nbx' | 'xs' | 'ys
     const out = new Float64Array(fr.used.length);
     for (let u = 0; u < fr.used.length; u++) {
       const cell = fr.used[u];
-      const c = cell % fr.nbx;
-      const r = (cell - c) / fr.nbx;
-      const k = r * W + c;
-      out[u] = w[0] * tmp[k] + w[1] * tmp[k + W] + w[2] * tmp[k + 2 * W] + w[3] * tmp[k + 3 * W] + w[4] * tmp[k + 4 * W] + w[5] * tmp[k + 5 * W] + w[6] * tmp[k + 6 * W];
+      const bx = cell % fr.nbx;
+      const by = (cell - bx) / fr.nbx;
+      let sum = 0;
+      for (let i = 0; i < sub; i++) {
+        for (let j = 0; j < sub; j++) {
+          const k = (by * sub + i) * W + bx * sub + j;
+          sum += w[0] * tmp[k] + w[1] * tmp[k + W] + w[2] * tmp[k + 2 * W] + w[3] * tmp[k + 3 * W] + w[4] * tmp[k + 4 * W] + w[5] * tmp[k + 5 * W] + w[6] * tmp[k + 6 * W];
+        }
+      }
+      out[u] = sum * inv;
     }
     return out;
   };

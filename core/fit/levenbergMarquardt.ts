@@ -33,8 +33,9 @@ export interface LMOptions {
   /**
    * Keep the Jacobian of an earlier point while steps are accepted (a chord, or simplified Newton, method;
    * default false): an accepted step costs one evaluation of the residuals only, and the gradient Jᵀr is
-   * formed with the kept J. The Jacobian is evaluated afresh when a step is rejected and before the fit is
-   * declared converged, so the result (and its normal matrix) is that of a fresh Jacobian at the solution.
+   * formed with the kept J. The Jacobian is evaluated afresh when a step is rejected, when an accepted step
+   * lowered χ² by less than half the predicted amount, and before the fit is declared converged, so the
+   * result (and its normal matrix) is that of a fresh Jacobian at the solution.
    * Cheaper when derivatives cost much more than values and the start is already close.
    */
   reuseJacobian?: boolean;
@@ -191,14 +192,20 @@ export function levenbergMarquardt(problem: WeightedProblem, start: Float64Array
       }
       // A step below the tolerance everywhere changes nothing that matters: converged, without evaluating it
       // (at the minimum, rounding-level changes of χ² would otherwise reject it and raise λ to its limit).
-      // Predicted decrease of χ² for the step: 2δᵀg − δᵀAδ (A undamped).
+      // Predicted decrease of χ² for this (damped) step: 2δᵀg − δᵀAδ (A undamped); and for the undamped
+      // Gauss–Newton step, gᵀA⁻¹g: when even that is negligible, there is nothing left to gain.
       let predicted = 0;
       for (let a = 0; a < n; a++) {
         let ad = 0;
         for (let b = 0; b < n; b++) ad += ne.A[a * n + b] * delta[b];
         predicted += delta[a] * (2 * ne.g[a] - ad);
       }
-      if (below(delta, tolStep) || predicted < tolAbs) {
+      let gaussNewton = Infinity;
+      if (tolAbs > 0) {
+        const gn = choleskySolve(ne.A, ne.g, n);
+        if (gn) gaussNewton = gn.reduce((sum, v, a) => sum + v * ne.g[a], 0);
+      }
+      if (below(delta, tolStep) || gaussNewton < tolAbs) {
         if (!fresh && refresh()) continue;
         done = true;
         break;
@@ -216,10 +223,10 @@ export function levenbergMarquardt(problem: WeightedProblem, start: Float64Array
         r = ev.r;
         chi2 = c2;
         if (reuse || !ev.J) {
-          if (reuse) {
+          if (reuse && chi2Before - c2 >= 0.5 * predicted) {
             ne = { A: ne.A, g: gradient(J!, r, n) };
             fresh = false;
-          } else if (!refresh()) break;
+          } else if (!refresh()) break; // the kept Jacobian predicted the step poorly: a fresh one
         } else {
           J = ev.J;
           ne = normalEquations(J, r, n);
