@@ -442,6 +442,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   }
   const polishWhich = polishFor(sol.params);
   let polishNote: string | null = null;
+  let polishUnsettled: string | null = null;
   // A fit that does not describe the frame (wrong setup, wrong minimum) gains nothing from the polish.
   const chi2BeforePolish = sol.chi2 / Math.max(1, fine.data.length - np);
   if (polishWhich.some(Boolean) && chi2BeforePolish > 2) {
@@ -471,6 +472,14 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
         if (!(lastShift > 5)) break;
       }
       polishNote = `reference-model polish: ${Math.min(rounds, 3)} round(s), last coefficient change ${Number.isFinite(lastShift) ? lastShift.toFixed(2) : 'n/a'}σ`;
+      // A later round that still moves the coefficients by more than half a σ has not settled: the fast
+      // model's derivatives are then far from the reference model's (seen at Fresnel numbers near 1).
+      if (rounds > 1 && lastShift > 0.5) {
+        const fresnel = Math.min(...inputs.map((f) => f.setup.disc.radiusM ** 2 / (f.setup.wavelengthM * f.setup.camera.distanceM)));
+        polishUnsettled =
+          `the reference-model polish had not settled: its last round still moved a coefficient by ${lastShift.toFixed(2)}σ ` +
+          `(Fresnel number a²/(λL) = ${fresnel.toFixed(2)}; the fast model is least accurate near 1): the coefficients may be off by more than their σ`;
+      }
     } catch (err) {
       if ((err as Error).name === 'CancelledError') throw err;
       fine.frames.forEach((fr) => (fr.correction = null));
@@ -565,6 +574,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   }
   if (noiseNote) warnings.push(noiseNote);
   if (polishNote && polishNote.startsWith('the reference')) warnings.push(polishNote);
+  if (polishUnsettled) warnings.push(polishUnsettled);
   // Residual structure: normalised residuals grouped in rings and sectors around the fitted centre.
   const structure = residualStructure(problem, sol.params);
   let trusted = true;
