@@ -64,7 +64,6 @@ export interface BinnedFrame {
    * nbx·s + 2·border and nby·s + 2·border centres), averaged over each sub-cell by the separable filter
    * PIXEL_FILTER, and the sub-cells are averaged.
    */
-  mode: 'stencil';
   subcells: number;
   /** Which points of the xs × ys grid the used super-pixels need (1 = needed), row-major. */
   needed: Uint8Array;
@@ -147,7 +146,6 @@ export function binFrame(input: FitFrameInput, binning: number, maxSubcells = 4)
     xs,
     ys,
     pixelsPer: b * b,
-    mode: 'stencil',
     subcells: sub,
     needed: neededPoints(usedCells, nbx, sub, xs.length, ys.length),
   };

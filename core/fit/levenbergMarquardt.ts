@@ -36,7 +36,8 @@ export interface LMOptions {
    * formed with the kept J. The Jacobian is evaluated afresh when a step is rejected, when an accepted step
    * lowered χ² by less than half the predicted amount, and before the fit is declared converged, so the
    * result (and its normal matrix) is that of a fresh Jacobian at the solution.
-   * Cheaper when derivatives cost much more than values and the start is already close.
+   * Cheaper when derivatives cost much more than values and the start is already close. Without it, every
+   * trial step is evaluated with its Jacobian, so that an accepted step needs no second evaluation.
    */
   reuseJacobian?: boolean;
   /**
