@@ -7,6 +7,7 @@ import { SAFETY_POINTS, SAFETY_TITLE } from '../../../core/safety.ts';
 import type { DiscCalibration } from '../../../core/fit/disc/calibrate.ts';
 import type { DiscProfile } from '../../../core/fit/disc/profile.ts';
 import { progressPrinter, UsageError } from '../output.ts';
+import { FIT_TUNING_OPTIONS, fitTuning, parseFitTerms } from '../fitOptions.ts';
 
 export const DISC_USAGE = `Usage: shadowfront disc calibrate <frames> <frames> ... --angles <list> --setup <setup.json> [options]
        shadowfront disc list [--json] [--db <file>]
@@ -125,9 +126,7 @@ async function calibrate(argv: string[]): Promise<number> {
       replace: { type: 'boolean', default: false },
       notes: { type: 'string' },
       db: { type: 'string' },
-      binning: { type: 'string', default: 'auto' },
-      gain: { type: 'string' },
-      'read-noise': { type: 'string' },
+      ...FIT_TUNING_OPTIONS,
       json: { type: 'boolean', default: false },
       help: { type: 'boolean', short: 'h', default: false },
     },
@@ -147,19 +146,8 @@ async function calibrate(argv: string[]): Promise<number> {
   if (!known && new Set(angles.map((a) => Math.round(deg(a) * 1e3))).size < 2) {
     process.stderr.write('note: all frames have the disc at one angle: the calibration will report that the disc shape and the beam astigmatism cannot be told apart (give two angles, e.g. 0,90, or --beam-known)\n');
   }
-  let terms: number[] | undefined;
-  if (values.terms) {
-    terms = values.terms.split(',').map((s) => Number(s.trim()));
-    if (terms.some((j) => !Number.isInteger(j))) throw new UsageError(`--terms must be a comma-separated list of ANSI indices such as 3,4,5,7,8, not "${values.terms}"`);
-  }
-  const binning = values.binning === 'auto' ? 'auto' : Number(values.binning);
-  if (binning !== 'auto' && (!Number.isInteger(binning) || binning < 1 || binning > 32)) throw new UsageError(`--binning must be "auto" or a whole number 1..32, not "${values.binning}"`);
-  const num = (name: string, v: string | undefined) => {
-    if (v === undefined) return undefined;
-    const x = Number(v);
-    if (!(x > 0) || !Number.isFinite(x)) throw new UsageError(`--${name} must be a positive number, not "${v}"`);
-    return x;
-  };
+  const terms = values.terms ? parseFitTerms(values.terms) : undefined;
+  const tuning = fitTuning(values);
   if (values.replace && !values.name) throw new UsageError('--replace needs --name <disc name or id>');
   const { runDiscCalibration, saveDiscProfile, checkDiscProfileTarget } = await import('../../services/discService.ts');
   // Refuse an existing calibration before the long fit, not after it.
@@ -171,7 +159,7 @@ async function calibrate(argv: string[]): Promise<number> {
     beam: known === undefined ? 'fit' : known === 'ideal' ? 'ideal' : { resultPath: known },
     orders: values.harmonics ? [2, 3, 4] : [2],
     terms,
-    options: { binning, gainCountsPerElectron: num('gain', values.gain), readNoiseCounts: num('read-noise', values['read-noise']) },
+    options: tuning,
     onProgress: (f) => bar(f),
   });
   let stored: { id: number; name: string; created: boolean; replaced: boolean } | null = null;

@@ -2,6 +2,7 @@ import { parseArgs } from 'node:util';
 import type { FitResult } from '../../../core/fit/result.ts';
 import { runFit } from '../../services/fitService.ts';
 import { progressPrinter, UsageError } from '../output.ts';
+import { FIT_TUNING_OPTIONS, fitTuning, parseFitTerms } from '../fitOptions.ts';
 
 export const FIT_USAGE = `Usage: shadowfront fit <frame files...> --setup <setup.json> [options]
 
@@ -32,13 +33,6 @@ Options:
   -h, --help              show this help
 
 Exit status: 0 fitted; 1 bad input; 2 bad usage; 3 the fit is not trustworthy (wrong minimum suspected).`;
-
-function parseTerms(text: string): number[] {
-  const parts = text.split(',').map((s) => s.trim()).filter(Boolean);
-  const out = parts.map((p) => Number(p));
-  if (out.length === 0 || out.some((j) => !Number.isInteger(j))) throw new UsageError(`--terms must be a comma-separated list of ANSI indices such as 3,4,5,7,8, not "${text}"`);
-  return out;
-}
 
 export function formatResult(r: FitResult): string {
   const lines: string[] = [];
@@ -109,9 +103,7 @@ export async function fitCommand(argv: string[]): Promise<number> {
       db: { type: 'string' },
       'source-size': { type: 'string' },
       'free-source-size': { type: 'boolean', default: false },
-      binning: { type: 'string', default: 'auto' },
-      gain: { type: 'string' },
-      'read-noise': { type: 'string' },
+      ...FIT_TUNING_OPTIONS,
       json: { type: 'boolean', default: false },
       help: { type: 'boolean', short: 'h', default: false },
     },
@@ -122,15 +114,8 @@ export async function fitCommand(argv: string[]): Promise<number> {
   }
   if (positionals.length === 0) throw new UsageError('missing the frame files');
   if (!values.setup) throw new UsageError('missing --setup <setup.json>');
-  const terms = values.terms ? parseTerms(values.terms) : undefined;
-  const binning = values.binning === 'auto' ? 'auto' : Number(values.binning);
-  if (binning !== 'auto' && (!Number.isInteger(binning) || binning < 1 || binning > 32)) throw new UsageError(`--binning must be "auto" or a whole number 1..32, not "${values.binning}"`);
-  const num = (name: string, v: string | undefined) => {
-    if (v === undefined) return undefined;
-    const x = Number(v);
-    if (!(x > 0) || !Number.isFinite(x)) throw new UsageError(`--${name} must be a positive number, not "${v}"`);
-    return x;
-  };
+  const terms = values.terms ? parseFitTerms(values.terms) : undefined;
+  const tuning = fitTuning(values);
   let discTolM: number | undefined;
   if (values['free-disc'] !== undefined) {
     const { parseLength } = await import('../../../core/units/parseQuantity.ts');
@@ -174,13 +159,11 @@ export async function fitCommand(argv: string[]): Promise<number> {
     logbookPath: values.db,
     sourceSizeM,
     options: {
-      binning,
+      ...tuning,
       freeDistance: values['free-distance'],
       freeSourceSize: values['free-source-size'],
       freeDiscRadius: discTolM !== undefined,
       discRadiusToleranceM: discTolM,
-      gainCountsPerElectron: num('gain', values.gain),
-      readNoiseCounts: num('read-noise', values['read-noise']),
     },
     onProgress: (f) => bar(f),
   });
