@@ -9,16 +9,10 @@
 import { describe, expect, it } from 'vitest';
 import { binFrame, PIXEL_FILTER, stencilReducer, type FitFrameInput } from '../../core/fit/frameModel.ts';
 import { fastField } from '../../core/optics/fast/rimModel.ts';
-import type { BenchSetup } from '../../core/setup/types.ts';
+import { makeSetup } from '../optics/helpers.ts';
 
-const setup: BenchSetup = {
-  wavelengthM: 632.8e-9,
-  beam: { radiusM: 4e-3, centerM: [0, 0], curvatureRadiusM: Infinity },
-  disc: { radiusM: 1.5e-3, ellipticity: 0, ellipseAngleRad: 0, edgeHarmonics: [] },
-  camera: { distanceM: 0.8, pixelPitchM: 5.5e-6, bitDepth: 12, saturationCounts: 4095, orientation: { flipX: false, flipY: false, rotateDeg: 0 } },
-  zernikeRadiusM: 4e-3,
-  source: { sizeM: 0 },
-};
+// The HeNe example bench: 632.8 nm, w = 4 mm collimated, 3 mm disc at 0.8 m, 5.5 µm pixels.
+const setup = makeSetup({});
 
 function input(widthPx: number, heightPx: number, regionRadiusPx: number): FitFrameInput {
   return {
