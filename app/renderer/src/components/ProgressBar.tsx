@@ -1,5 +1,6 @@
 /** A progress bar with the stage in words, the elapsed time and an optional Cancel button. */
 import type { JSX } from 'react';
+import type { JobStatus } from '../../../shared/contract.ts';
 
 export function ProgressBar(props: {
   fraction: number;
@@ -26,5 +27,31 @@ export function ProgressBar(props: {
         </button>
       ) : null}
     </div>
+  );
+}
+
+/** A running job's progress bar, or how the last one ended when it gave no value; the same on every screen. */
+export function JobProgress(props: {
+  job: { running: boolean; cancelling: boolean; status: JobStatus | null; note: string | null };
+  onCancel: () => void;
+  testId: string;
+  cancelTestId: string;
+}): JSX.Element {
+  const { job } = props;
+  return (
+    <>
+      {job.running ? (
+        <ProgressBar
+          fraction={job.status?.fraction ?? 0}
+          stage={job.status?.stage ?? 'starting'}
+          elapsedMs={job.status?.elapsedMs}
+          onCancel={props.onCancel}
+          cancelTestId={props.cancelTestId}
+          testId={props.testId}
+          cancelling={job.cancelling}
+        />
+      ) : null}
+      {job.note && !job.running ? <p className="muted">{job.note}</p> : null}
+    </>
   );
 }

@@ -12,7 +12,7 @@ import type { Disc } from '../../../../core/logbook/types.ts';
 import type { DiscProfile } from '../../../../core/fit/disc/profile.ts';
 import { SAFETY_POINTS, SAFETY_TITLE } from '../../../../core/safety.ts';
 import { zernikeName } from '../../../../core/zernike/zernike-name.ts';
-import { ProgressBar } from '../components/ProgressBar.tsx';
+import { JobProgress } from '../components/ProgressBar.tsx';
 import { readFiles } from '../lib/session.ts';
 import type { Session } from '../lib/session.ts';
 import { discNamed, profileOf, type AngleSlot, type CalibrationUsed, type DiscCalibrationState } from '../lib/discCalibration.ts';
@@ -163,18 +163,7 @@ export function DiscScreen(props: { state: DiscCalibrationState; session: Sessio
             {noFrames ? <span className="muted small-text">Open frames for every angle (or remove the angle).</span> : null}
             {!noFrames && setupMissing ? <span className="muted small-text">Choose the bench setup of these frames.</span> : null}
           </div>
-          {job.running ? (
-            <ProgressBar
-              fraction={job.status?.fraction ?? 0}
-              stage={job.status?.stage ?? 'starting'}
-              elapsedMs={job.status?.elapsedMs}
-              onCancel={job.cancel}
-              cancelTestId="disc-cancel"
-              testId="disc-progress"
-              cancelling={job.cancelling}
-            />
-          ) : null}
-          {job.note && !job.running ? <p className="muted">{job.note}</p> : null}
+          <JobProgress job={job} onCancel={job.cancel} testId="disc-progress" cancelTestId="disc-cancel" />
         </section>
 
         {job.value && state.used && !job.running ? (

@@ -9,7 +9,7 @@ import type { JSX } from 'react';
 import type { CandidateReport, PlanReport } from '../../../../core/plan/types.ts';
 import { SAFETY_POINTS } from '../../../../core/safety.ts';
 import { FieldGroup, TextField } from '../components/Fields.tsx';
-import { ProgressBar } from '../components/ProgressBar.tsx';
+import { JobProgress } from '../components/ProgressBar.tsx';
 import { PlanChart } from '../charts/PlanChart.tsx';
 import { getAt, pathMatches, setAt } from '../lib/jsonPath.ts';
 import { ASTIGMATISM_TERMS, COMA_TERMS, DEFOCUS_TERMS, sigmaOf, type Planner, type PlanJson } from '../lib/planner.ts';
@@ -145,18 +145,7 @@ export function PlannerScreen(props: { planner: Planner }): JSX.Element {
           </button>
           {plan && typeof plan.note === 'string' ? <span className="muted small-text">Plan note: {plan.note}</span> : null}
         </div>
-        {job.running ? (
-          <ProgressBar
-            fraction={job.status?.fraction ?? 0}
-            stage={job.status?.stage ?? 'starting'}
-            elapsedMs={job.status?.elapsedMs}
-            onCancel={job.cancel}
-            cancelTestId="plan-cancel"
-            testId="plan-progress"
-            cancelling={job.cancelling}
-          />
-        ) : null}
-        {job.note && !job.running ? <p className="muted">{job.note}</p> : null}
+        <JobProgress job={job} onCancel={job.cancel} testId="plan-progress" cancelTestId="plan-cancel" />
         {unplaced ? (
           <p className="field-problem block" role="alert" data-testid="plan-problem">
             {unplaced}

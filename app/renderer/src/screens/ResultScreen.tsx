@@ -12,7 +12,7 @@ import type { FitResult } from '../../../../core/fit/result.ts';
 import { zernikeName } from '../../../../core/zernike/zernike-name.ts';
 import { ImageView } from '../components/ImageView.tsx';
 import { ProfileChart } from '../components/ProfileChart.tsx';
-import { ProgressBar } from '../components/ProgressBar.tsx';
+import { JobProgress } from '../components/ProgressBar.tsx';
 import { calibratedDiscs, type FitUsed, type Session } from '../lib/session.ts';
 import { fmtLength, fmtNum, fmtPm } from '../lib/format.ts';
 
@@ -33,7 +33,6 @@ export function ResultScreen(props: { session: Session }): JSX.Element {
 
   const toggle = (j: number): void => setTerms((t) => (t.includes(j) ? t.filter((k) => k !== j) : [...t, j].sort((a, b) => a - b)));
   const canRun = frameSet.frames.length > 0 && !fit.running && terms.length > 0 && !check?.problem;
-  const status = fit.status;
 
   const run = (): void => {
     let discAngleDeg: number | null = null;
@@ -111,18 +110,7 @@ export function ResultScreen(props: { session: Session }): JSX.Element {
         {terms.includes(4) && terms.includes(12) ? (
           <p className="warn-text small-text">Defocus (4) and spherical (12) look alike at the rim; fitted together their values are less certain.</p>
         ) : null}
-        {fit.running ? (
-          <ProgressBar
-            fraction={status?.fraction ?? 0}
-            stage={status?.stage ?? 'starting'}
-            elapsedMs={status?.elapsedMs}
-            onCancel={cancelFit}
-            cancelTestId="cancel-fit"
-            testId="fit-progress"
-            cancelling={fit.cancelling}
-          />
-        ) : null}
-        {fit.note && !fit.running ? <p className="muted">{fit.note}</p> : null}
+        <JobProgress job={fit} onCancel={cancelFit} testId="fit-progress" cancelTestId="cancel-fit" />
       </section>
 
       {fit.outcome && fit.used && !fit.running ? <Outcome outcome={fit.outcome} used={fit.used} session={session} /> : null}
