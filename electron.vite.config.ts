@@ -3,6 +3,7 @@
  *
  *   out/main/index.js       Electron main process (app/main/index.ts)
  *   out/main/jobWorker.js   the job worker thread (app/services/app/jobWorker.ts)
+ *   out/main/fieldWorker.js a helper thread that computes parts of model grids (app/services/threads/fieldWorker.ts)
  *   out/main/serve.js       the local web mode's command (app/cli/commands/serve.ts), which `npm start`
  *                           runs where Electron is missing: bundled, it starts in a fraction of the time
  *                           the sources take through tsx (mathjs is cut down to the unit part)
@@ -54,6 +55,7 @@ export default defineConfig({
         input: {
           index: resolve(root, 'app/main/index.ts'),
           jobWorker: resolve(root, 'app/services/app/jobWorker.ts'),
+          fieldWorker: resolve(root, 'app/services/threads/fieldWorker.ts'),
           serve: resolve(root, 'app/cli/commands/serve.ts'),
         },
         output: { entryFileNames: '[name].js', chunkFileNames: '[name]-[hash].js' },

@@ -6,6 +6,7 @@
 import type { ZernikeTerm } from '../../core/setup/types.ts';
 import type { FrameSet } from '../../core/fit/measure.ts';
 import type { Disc } from '../../core/logbook/types.ts';
+import { sharedFieldEngine } from './threads/fieldThreads.ts';
 import { calibrateDisc, type CalibrateOptions, type CalibrationBeam, type DiscCalibration } from '../../core/fit/disc/calibrate.ts';
 import { appliedProfile, parseDiscProfile, DISC_PROFILE_FORMAT, type AppliedDiscProfile, type DiscProfile } from '../../core/fit/disc/profile.ts';
 import { RESULT_FORMAT } from '../../core/fit/result.ts';
@@ -72,7 +73,7 @@ export function calibratePreparedSets(
       throw new RangeError('all frame sets of one calibration must share the wavelength and the Zernike radius');
     }
   }
-  return calibrateDisc(sets, { ...job.options, orders: job.orders, beam: job.beam ?? 'fit', terms: job.terms, software: softwareVersion(), onProgress: job.onProgress });
+  return calibrateDisc(sets, { fieldEngine: sharedFieldEngine(), ...job.options, orders: job.orders, beam: job.beam ?? 'fit', terms: job.terms, software: softwareVersion(), onProgress: job.onProgress });
 }
 
 /** Read the frames of every angle and calibrate the disc. */

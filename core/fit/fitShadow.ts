@@ -31,6 +31,7 @@ import type { AppliedDiscProfile, DiscShapeResult } from './disc/profile.ts';
 import { summariseDiscShape } from './disc/summary.ts';
 import { profileCovariance } from './disc/propagate.ts';
 import { sourceBlurDiameterM } from './sourceBlur.ts';
+import { localFieldEngine, type FieldEngine } from '../optics/fieldEngine.ts';
 import { referenceCorrections, regionReachesShadowEdge, type PolishMode } from './referencePolish.ts';
 
 export const DEFAULT_TERMS = [3, 4, 5, 7, 8] as const;
@@ -69,6 +70,11 @@ export interface FitOptions {
   maxIterations?: number;
   /** Progress 0..1 with a stage name; return false to cancel. */
   onProgress?: (fraction: number, stage: string) => boolean | void;
+  /**
+   * Where the model fields are computed (core/optics/fieldEngine.ts): by default in this thread; a shell may
+   * share the work among threads. The result does not depend on it.
+   */
+  fieldEngine?: FieldEngine;
   /**
    * Estimate the camera noise (gain and read noise) from the residuals of a first fit, for frames whose
    * noise is not known (no dark frames, no gain given). χ²/dof is then ≈ 1 by construction and only the
@@ -125,6 +131,8 @@ interface Problem {
   sigma: Float64Array;
   /** Gaussian priors (p[index] − centre)/sigma appended to the residuals. */
   priors: { index: number; sigma: number; centre: number }[];
+  /** Where the model fields are computed. */
+  engine: FieldEngine;
 }
 
 function makeWeighted(pr: Problem, jacobianMode: 'exact' | 'centre' = 'centre') {
@@ -133,7 +141,7 @@ function makeWeighted(pr: Problem, jacobianMode: 'exact' | 'centre' = 'centre') 
   return {
     nParams: np,
     evaluate(p: Float64Array, withJacobian: boolean) {
-      const ev = evaluateModel(pr.frames, pr.layout, p, withJacobian, pr.rim, jacobianMode);
+      const ev = evaluateModel(pr.frames, pr.layout, p, withJacobian, pr.rim, jacobianMode, pr.engine);
       const m = pr.data.length;
       const r = new Float64Array(m + extra);
       for (let i = 0; i < m; i++) r[i] = (pr.data[i] - ev.model[i]) / pr.sigma[i];
@@ -200,6 +208,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     : 0;
   if (options.freeSourceSize) inputs = inputs.map((f) => ({ ...f, setup: { ...f.setup, source: { sizeM: 1.5 * sourceStartM } } }));
   const progress = options.onProgress;
+  const engine = options.fieldEngine ?? localFieldEngine;
   const step = (f: number, stage: string) => {
     if (progress && progress(f, stage) === false) throw cancelledError();
   };
@@ -241,7 +250,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
       data.set(f.data, o);
       o += f.data.length;
     }
-    return { frames, layout, data, rim: rimFor(frames), sigma: new Float64Array(data.length), priors };
+    return { frames, layout, data, rim: rimFor(frames), sigma: new Float64Array(data.length), priors, engine };
   };
   const fine = makeProblem(binning);
   // The coarse stage keeps ≲ 2500 super-pixels; the defocus search runs on ≲ 900 (it reads mostly the
@@ -282,7 +291,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     }
   }
   const setScaleBackground = (q: Float64Array): number => {
-    const ev = evaluateModel(search.frames, layout, q, false, search.rim);
+    const ev = evaluateModel(search.frames, layout, q, false, search.rim, 'exact', engine);
     let row = 0;
     let c2 = 0;
     for (let f = 0; f < search.frames.length; f++) {
@@ -315,7 +324,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
 
   // --- noise weights from the model, then LM; weights refreshed at the solution
   const refreshSigma = (pr: Problem, q: Float64Array) => {
-    const ev = evaluateModel(pr.frames, layout, q, false, pr.rim);
+    const ev = evaluateModel(pr.frames, layout, q, false, pr.rim, 'exact', engine);
     const v = superPixelVariance(pr.frames, layout, q, ev.intensity);
     for (let i = 0; i < v.length; i++) pr.sigma[i] = Math.sqrt(Math.max(v[i], 1e-12));
   };
@@ -453,9 +462,17 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     try {
       for (rounds = 1; rounds <= 3; rounds++) {
         step(0.85, 'reference-model check');
-        const corr = referenceCorrections(fine.frames, layout, sol.params, fine.rim, polishWhich, (g) => {
-          if (progress && progress(0.85 + 0.03 * g, 'reference-model check') === false) return false;
-        });
+        const corr = referenceCorrections(
+          fine.frames,
+          layout,
+          sol.params,
+          fine.rim,
+          polishWhich,
+          (g) => {
+            if (progress && progress(0.85 + 0.03 * g, 'reference-model check') === false) return false;
+          },
+          engine,
+        );
         fine.frames.forEach((fr, i) => (fr.correction = corr[i]));
         const before = sol.params;
         refreshSigma(fine, before);
@@ -672,7 +689,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
  * by weighted linear regression (S = model signal above background), iterated twice for the weights.
  */
 function estimateNoiseModel(pr: Problem, p: Float64Array): { gain: number; readNoise: number } | null {
-  const ev = evaluateModel(pr.frames, pr.layout, p, false, pr.rim);
+  const ev = evaluateModel(pr.frames, pr.layout, p, false, pr.rim, 'exact', pr.engine);
   const nz = pr.layout.terms.length;
   const xs: number[] = [];
   const ys: number[] = [];
@@ -710,7 +727,7 @@ function estimateNoiseModel(pr: Problem, p: Float64Array): { gain: number; readN
 
 /** χ²-like statistic of residual means over rings × 8 sectors; excess in standard deviations above its expectation. */
 function residualStructure(pr: Problem, p: Float64Array): { statistic: number; groups: number; excess: number } {
-  const ev = evaluateModel(pr.frames, pr.layout, p, false, pr.rim);
+  const ev = evaluateModel(pr.frames, pr.layout, p, false, pr.rim, 'exact', pr.engine);
   const nz = pr.layout.terms.length;
   const sums = new Map<string, { s: number; n: number }>();
   let row = 0;

@@ -12,7 +12,8 @@
  * frame by S·L/G (./sourceBlur.ts).
  */
 import type { BenchSetup, ZernikeTerm } from '../setup/types.ts';
-import { fastField, chooseRimSamples } from '../optics/fast/rimModel.ts';
+import { chooseRimSamples } from '../optics/fast/rimModel.ts';
+import { localFieldEngine, type FieldEngine } from '../optics/fieldEngine.ts';
 import { discShapeFieldDerivatives, discShapeParameterNames, discWithShape, shapeTermsFromParams, type DiscShapeTerm } from './disc/shape.ts';
 import { blurredGrid, sourceBlurDiameterM, type BlurLevel } from './sourceBlur.ts';
 
@@ -274,6 +275,8 @@ export function evaluateModel(
    * always get the filtered, pixel-integrated derivatives, at no extra cost.
    */
   jacobianMode: 'exact' | 'centre' = 'exact',
+  /** Where the fields are computed (core/optics/fieldEngine.ts); the result does not depend on it. */
+  engine: FieldEngine = localFieldEngine,
 ): ModelEvaluation {
   const nz = layout.terms.length;
   const np = parameterCount(layout);
@@ -302,7 +305,7 @@ export function evaluateModel(
     // and values and derivatives are filtered alike: every Jacobian is the pixel-integrated one. A blurred
     // frame in 'centre' mode takes its derivatives at super-pixel centres, blurred at super-pixel level.
     const centreJacobian = withJacobian && jacobianMode === 'centre' && !!grid;
-    const field = fastField(setup, aberrations, xs, ys, {
+    const field = engine.fastField(setup, aberrations, xs, ys, {
       nPhi: rimSamples[f],
       derivativeTerms: withJacobian && !centreJacobian ? layout.terms : undefined,
       centerDerivatives: withJacobian && !centreJacobian,
@@ -312,7 +315,7 @@ export function evaluateModel(
       // Blurred frame: derivatives at the super-pixel centres (with margin), blurred at super-pixel level.
       const cxs = Float64Array.from(grid.centreXs, (v) => v - cx);
       const cys = Float64Array.from(grid.centreYs, (v) => v - cy);
-      const cf = fastField(setup, aberrations, cxs, cys, { nPhi: rimSamples[f], derivativeTerms: layout.terms, centerDerivatives: true });
+      const cf = engine.fastField(setup, aberrations, cxs, cys, { nPhi: rimSamples[f], derivativeTerms: layout.terms, centerDerivatives: true });
       const sd = discOrders.length ? discShapeFieldDerivatives(setup, aberrations, cxs, cys, rimSamples[f], discOrders, rotation) : null;
       const dRe = sd ? [...cf.dRe, ...sd.dRe] : cf.dRe;
       const dIm = sd ? [...cf.dIm, ...sd.dIm] : cf.dIm;
@@ -389,8 +392,8 @@ export function evaluateModel(
       const pm = Float64Array.from(p);
       pp[col] += h;
       pm[col] -= h;
-      const mp = evaluateModel(frames, layout, pp, false, rimSamples).model;
-      const mm = evaluateModel(frames, layout, pm, false, rimSamples).model;
+      const mp = evaluateModel(frames, layout, pp, false, rimSamples, 'exact', engine).model;
+      const mm = evaluateModel(frames, layout, pm, false, rimSamples, 'exact', engine).model;
       void jacobianMode;
       for (let i = 0; i < total; i++) jac[i * np + col] = (mp[i] - mm[i]) / (2 * h);
       col++;

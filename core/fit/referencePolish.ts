@@ -11,8 +11,7 @@
  * model error). Inside the shadow the correction is below the noise and is skipped by default.
  */
 import { effectiveDistanceM } from '../optics/geometry.ts';
-import { fastField } from '../optics/fast/rimModel.ts';
-import { referenceIntensity } from '../optics/reference/index.ts';
+import { localFieldEngine, type FieldEngine } from '../optics/fieldEngine.ts';
 import { modelAberrations, modelSetup, stencilReducer, type BinnedFrame, type FitFrameInput, type ModelLayout } from './frameModel.ts';
 import { blurredGrid, sourceBlurDiameterM } from './sourceBlur.ts';
 
@@ -41,6 +40,7 @@ export function referenceCorrections(
   rimSamples: number[],
   which: boolean[],
   onProgress?: (fraction: number) => boolean | void,
+  engine: FieldEngine = localFieldEngine,
 ): (Float64Array | null)[] {
   const nz = layout.terms.length;
   const aberrations = modelAberrations(layout, p);
@@ -57,10 +57,10 @@ export function referenceCorrections(
     const xs = Float64Array.from(grid ? grid.xs : fr.xs, (v) => v - cx);
     const ys = Float64Array.from(grid ? grid.ys : fr.ys, (v) => v - cy);
     const reduce = grid ? (v: Float64Array) => grid.reduce(v) : stencilReducer(fr);
-    const ref = referenceIntensity(setup, aberrations, xs, ys, {
+    const ref = engine.referenceIntensity(setup, aberrations, xs, ys, {
       onProgress: onProgress ? (g) => onProgress((done + 0.9 * g) / todo) : undefined,
     });
-    const field = fastField(setup, aberrations, xs, ys, { nPhi: rimSamples[f], pointMask: grid ? null : fr.needed });
+    const field = engine.fastField(setup, aberrations, xs, ys, { nPhi: rimSamples[f], pointMask: grid ? null : fr.needed });
     const fast = new Float64Array(field.re.length);
     for (let k = 0; k < fast.length; k++) fast[k] = field.re[k] * field.re[k] + field.im[k] * field.im[k];
     done++;

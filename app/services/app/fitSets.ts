@@ -8,6 +8,7 @@ import type { BenchSetup } from '../../../core/setup/types.ts';
 import { measureBeam, type MeasureOptions } from '../../../core/fit/measure.ts';
 import type { FitResult } from '../../../core/fit/result.ts';
 import type { FramesForFit } from '../frames.ts';
+import { sharedFieldEngine } from '../threads/fieldThreads.ts';
 
 let versionCache: string | null = null;
 /** "shadowfront <version>" from package.json. */
@@ -46,6 +47,8 @@ export function fitPreparedSets(sets: PreparedFrameSet[], job: PreparedFitJob = 
     }
   }
   return measureBeam(sets, {
+    // the model grids are shared with helper threads (../threads/fieldThreads.ts); the result is the same
+    fieldEngine: sharedFieldEngine(),
     ...job.options,
     terms: job.terms,
     software: softwareVersion(),

@@ -32,6 +32,13 @@ export interface ReferenceOptions {
   accuracy?: 'normal' | 'high';
   /** Called with the completed fraction; returning false cancels (an Error named 'CancelledError' is thrown). */
   onProgress?: (fraction: number) => boolean | void;
+  /**
+   * The camera points the quadrature is planned for (default: the evaluated ones). A caller that computes a
+   * grid in parts passes the whole grid's axes here, so that every part uses the same nodes; they must
+   * cover the evaluated points.
+   */
+  planXsM?: Float64Array;
+  planYsM?: Float64Array;
 }
 
 /** Options for tests and diagnostics (not part of the public API). */
@@ -60,6 +67,24 @@ function checkPoints(p: Float64Array, what: string): void {
   }
 }
 
+function range(p: Float64Array): [number, number] {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let i = 0; i < p.length; i++) {
+    if (p[i] < lo) lo = p[i];
+    if (p[i] > hi) hi = p[i];
+  }
+  return [lo, hi];
+}
+
+/** The quadrature is only as good as its plan: the evaluated points must lie within the planned ones. */
+function checkCovered(p: Float64Array, plan: Float64Array, what: string): void {
+  if (p === plan || p.length === 0) return;
+  const [lo, hi] = range(p);
+  const [plo, phi] = range(plan);
+  if (lo < plo || hi > phi) throw new RangeError(`${what} spans [${lo}, ${hi}] m, outside the planned points' [${plo}, ${phi}] m`);
+}
+
 /** The reference field with a description of the quadrature used. */
 export function referenceFieldWithInfo(
   setup: BenchSetup,
@@ -81,9 +106,15 @@ export function referenceFieldWithInfo(
   const re = new Float64Array(nx * ny);
   const im = new Float64Array(nx * ny);
 
+  const planXs = options.planXsM ?? xsM;
+  const planYs = options.planYsM ?? ysM;
+  if (options.planXsM) checkPoints(planXs, 'planXsM');
+  if (options.planYsM) checkPoints(planYs, 'planYsM');
+  checkCovered(xsM, planXs, 'xsM');
+  checkCovered(ysM, planYs, 'ysM');
   const split = options.freeBeam === 'numeric' ? null : separableQuadratic(scene, setup.zernikeRadiusM);
-  const grid = split ? null : planNumericGrid(scene, xsM, ysM, accuracy, nodeScale, maxGrid);
-  const rates = discRates(scene, xsM, ysM);
+  const grid = split ? null : planNumericGrid(scene, planXs, planYs, accuracy, nodeScale, maxGrid);
+  const rates = discRates(scene, planXs, planYs);
   const circle = planCircle(scene, rates, accuracy, nodeScale);
   const strip = planStrip(scene, rates, accuracy, nodeScale);
   let maxChord = 0;

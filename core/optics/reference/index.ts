@@ -11,6 +11,10 @@ import type { BenchSetup, ZernikeTerm } from '../../setup/types.ts';
 import { referenceFieldWithInfo, type ComplexGrid } from './field.ts';
 
 export type { ComplexGrid, ReferenceOptions, InternalOptions, ReferenceInfo } from './field.ts';
+import type { ReferenceOptions } from './field.ts';
+
+/** Options of referenceIntensity. */
+export type ReferenceIntensityOptions = Pick<ReferenceOptions, 'accuracy' | 'onProgress' | 'planXsM' | 'planYsM'>;
 /** Same field plus a description of the quadrature used (route, grid, node counts); for diagnostics. */
 export { referenceFieldWithInfo } from './field.ts';
 
@@ -27,7 +31,7 @@ export function referenceField(
   aberrations: readonly ZernikeTerm[],
   xsM: Float64Array,
   ysM: Float64Array,
-  options?: { accuracy?: 'normal' | 'high'; onProgress?: (fraction: number) => boolean | void },
+  options?: ReferenceIntensityOptions,
 ): ComplexGrid {
   return referenceFieldWithInfo(setup, aberrations, xsM, ysM, options ?? {}).field;
 }
@@ -38,7 +42,7 @@ export function referenceIntensity(
   aberrations: readonly ZernikeTerm[],
   xsM: Float64Array,
   ysM: Float64Array,
-  options?: { accuracy?: 'normal' | 'high'; onProgress?: (fraction: number) => boolean | void },
+  options?: ReferenceIntensityOptions,
 ): Float64Array {
   const { re, im } = referenceField(setup, aberrations, xsM, ysM, options);
   const out = new Float64Array(re.length);
