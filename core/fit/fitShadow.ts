@@ -22,6 +22,7 @@ import {
   type BinnedFrame,
   type FitFrameInput,
   type ModelLayout,
+  type ModelEvaluation,
 } from './frameModel.ts';
 import { RESULT_FORMAT, type FitResult, type Termination } from './result.ts';
 import { symmetryCentrePx } from './symmetryCentre.ts';
@@ -135,13 +136,61 @@ interface Problem {
   engine: FieldEngine;
 }
 
-function makeWeighted(pr: Problem, jacobianMode: 'exact' | 'centre' = 'centre') {
+/**
+ * A model evaluation kept for reuse: the (unweighted) model Jacobian and the intensity at parameters p, for
+ * the Jacobian mode it was made in.
+ */
+interface KeptEvaluation {
+  p: Float64Array;
+  intensity: Float64Array;
+  jacobian: Float64Array;
+  mode: 'exact' | 'centre';
+}
+
+/**
+ * The evaluation at seed.p from a kept Jacobian and a new intensity: for a model that differs from the kept
+ * one by a constant added to the intensity (the reference-model correction), every derivative is the same
+ * except the one by the scale, which is the intensity itself.
+ */
+function seededEvaluation(pr: Problem, p: Float64Array, seed: KeptEvaluation): ModelEvaluation {
+  const np = parameterCount(pr.layout);
+  const nz = pr.layout.terms.length;
+  const model = new Float64Array(seed.intensity.length);
+  const jacobian = Float64Array.from(seed.jacobian);
+  let row = 0;
+  pr.frames.forEach((fr, f) => {
+    const scale = p[nz + 4 * f + 2], bg = p[nz + 4 * f + 3];
+    for (let u = 0; u < fr.used.length; u++, row++) {
+      model[row] = scale * seed.intensity[row] + bg;
+      jacobian[row * np + nz + 4 * f + 2] = seed.intensity[row];
+    }
+  });
+  return { model, intensity: seed.intensity, jacobian };
+}
+
+function sameParams(a: Float64Array, b: Float64Array): boolean {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+/**
+ * The problem with residuals and Jacobian divided by σ. `seed` (used once) replaces the first evaluation
+ * with a Jacobian at exactly seed.p; `last` keeps the latest evaluation with a Jacobian.
+ */
+function makeWeighted(pr: Problem, jacobianMode: 'exact' | 'centre' = 'centre', seed: KeptEvaluation | null = null) {
   const np = parameterCount(pr.layout);
   const extra = pr.priors.length;
-  return {
+  const weighted = {
     nParams: np,
+    last: null as KeptEvaluation | null,
     evaluate(p: Float64Array, withJacobian: boolean) {
-      const ev = evaluateModel(pr.frames, pr.layout, p, withJacobian, pr.rim, jacobianMode, pr.engine);
+      let ev: ModelEvaluation;
+      if (seed && withJacobian && seed.mode === jacobianMode && sameParams(seed.p, p)) {
+        ev = seededEvaluation(pr, p, seed);
+        seed = null;
+      } else ev = evaluateModel(pr.frames, pr.layout, p, withJacobian, pr.rim, jacobianMode, pr.engine);
+      if (ev.jacobian) weighted.last = { p: Float64Array.from(p), intensity: ev.intensity, jacobian: ev.jacobian, mode: jacobianMode };
       const m = pr.data.length;
       const r = new Float64Array(m + extra);
       for (let i = 0; i < m; i++) r[i] = (pr.data[i] - ev.model[i]) / pr.sigma[i];
@@ -160,6 +209,7 @@ function makeWeighted(pr: Problem, jacobianMode: 'exact' | 'centre' = 'centre') 
       return { r, J };
     },
   };
+  return weighted;
 }
 
 function chi2At(pr: Problem, p: Float64Array): number {
@@ -323,15 +373,17 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   }
 
   // --- noise weights from the model, then LM; weights refreshed at the solution
-  const refreshSigma = (pr: Problem, q: Float64Array) => {
-    const ev = evaluateModel(pr.frames, layout, q, false, pr.rim, 'exact', engine);
-    const v = superPixelVariance(pr.frames, layout, q, ev.intensity);
+  const refreshSigma = (pr: Problem, q: Float64Array, intensity?: Float64Array) => {
+    const v = superPixelVariance(pr.frames, layout, q, intensity ?? evaluateModel(pr.frames, layout, q, false, pr.rim, 'exact', engine).intensity);
     for (let i = 0; i < v.length; i++) pr.sigma[i] = Math.sqrt(Math.max(v[i], 1e-12));
   };
   const maxIt = options.maxIterations ?? 60;
   let iterationsTotal = 0;
-  const runLM = (pr: Problem, start: Float64Array, from: number, span: number, jacobianMode: 'exact' | 'centre' = 'centre'): LMResult => {
-    const res = levenbergMarquardt(makeWeighted(pr, jacobianMode), start, {
+  // The fine stage's latest evaluation with a Jacobian (the polish starts from it).
+  const keptFine: { value: KeptEvaluation | null } = { value: null };
+  const runLM = (pr: Problem, start: Float64Array, from: number, span: number, seed: KeptEvaluation | null = null): LMResult => {
+    const weighted = makeWeighted(pr, 'centre', seed);
+    const res = levenbergMarquardt(weighted, start, {
       maxIterations: maxIt,
       // Steps below 1 % of σ change nothing that matters; the residuals are exact, the step Jacobian is not.
       stepTolerance: 0.01,
@@ -350,6 +402,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     });
     iterationsTotal += res.iterations;
     if (res.termination === 'cancelled') throw cancelledError();
+    if (pr === fine) keptFine.value = weighted.last && sameParams(weighted.last.p, res.params) ? weighted.last : null;
     return res;
   };
   refreshSigma(coarse, best);
@@ -473,10 +526,23 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
           },
           engine,
         );
-        fine.frames.forEach((fr, i) => (fr.correction = corr[i]));
         const before = sol.params;
-        refreshSigma(fine, before);
-        sol = runLM(fine, before, 0.88, 0.02);
+        // At `before` the corrected intensity is the kept one with the new correction in place of the old,
+        // and the kept Jacobian serves (the correction is constant in p; seededEvaluation): the weights and
+        // the first step need no new evaluation.
+        const kept = keptFine.value && sameParams(keptFine.value.p, before) ? keptFine.value : null;
+        let seed: KeptEvaluation | null = null;
+        if (kept) {
+          const intensity = Float64Array.from(kept.intensity);
+          let row = 0;
+          fine.frames.forEach((fr, i) => {
+            for (let u = 0; u < fr.used.length; u++, row++) intensity[row] += (corr[i]?.[u] ?? 0) - (fr.correction?.[u] ?? 0);
+          });
+          seed = { ...kept, intensity };
+        }
+        fine.frames.forEach((fr, i) => (fr.correction = corr[i]));
+        refreshSigma(fine, before, seed?.intensity);
+        sol = runLM(fine, before, 0.88, 0.02, seed);
         // Another round only when the coefficients moved by more than 5σ (σ from this solution's normal
         // matrix): the correction changes with p only through the fast model's small error, so a second round
         // moves them by about 1 % of the first move (measured: ≤ 0.03σ after first moves of 1–5σ).

@@ -58,6 +58,7 @@ export function referenceCorrections(
     const ys = Float64Array.from(grid ? grid.ys : fr.ys, (v) => v - cy);
     const reduce = grid ? (v: Float64Array) => grid.reduce(v) : stencilReducer(fr);
     const ref = engine.referenceIntensity(setup, aberrations, xs, ys, {
+      accuracy: 'draft',
       onProgress: onProgress ? (g) => onProgress((done + 0.9 * g) / todo) : undefined,
     });
     const field = engine.fastField(setup, aberrations, xs, ys, { nPhi: rimSamples[f], pointMask: grid ? null : fr.needed });

@@ -80,8 +80,17 @@ import { simulateFrame } from '../../core/optics/simulate.ts';
 import { prepareFrames } from '../../core/frames/prepare.ts';
 import { measureBeam } from '../../core/fit/measure.ts';
 import type { Scene } from '../../core/setup/types.ts';
+import { localFieldEngine } from '../../core/optics/fieldEngine.ts';
+import { FieldThreads, helperCount } from '../../app/services/threads/fieldThreads.ts';
 
-process.stdout.write('\nFit of one frame, 5 terms (median of 3 after a warm-up fit):\n');
+// The shells' fits share each model grid with helper threads (app/services/threads/fieldThreads.ts).
+const helpers = helperCount();
+const threads = helpers > 0 ? new FieldThreads({ helpers }) : null;
+if (threads) await threads.whenReady();
+process.stdout.write(
+  `\nFit of one frame, 5 terms (median of 3 after a warm-up fit), as the shells run it: ${helpers + 1} thread(s)` +
+    `${threads ? ' (the calling thread and ' + helpers + ' helper)' : ''}; "1 thread" rows: all in the calling thread:\n`,
+);
 for (const size of [256, 512]) {
   for (const [label, pitch] of [
     ['spot and rings, 5.5 µm px', 5.5e-6],
@@ -97,16 +106,22 @@ for (const size of [256, 512]) {
     const sim = simulateFrame(scene, { model: 'fast' });
     const prepared = prepareFrames([{ data: Float64Array.from(sim.counts), widthPx: size, heightPx: size, bitDepth: 16, warnings: [], format: 'png' }], [], scene.camera, ['bench.png']);
     let binning = 0;
+    const fieldEngine = threads ?? localFieldEngine;
     const t = time(() => {
-      const r = measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3 });
+      const r = measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3, fieldEngine });
       binning = r.regions[0].binning;
     }, 3);
     row(`${size}×${size}`, label, `fit ${(t / 1000).toFixed(2)} s (super-pixels ${binning}×${binning})`);
+    if (threads) {
+      const t1 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3 }), 3);
+      row(`${size}×${size}`, `${label}, 1 thread`, `fit ${(t1 / 1000).toFixed(2)} s`);
+    }
     if (label.startsWith('whole')) {
       // the same fit without the reference-model polish (core/fit/referencePolish.ts), to show its cost
-      const t2 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3, referencePolish: 'never' }), 3);
+      const t2 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3, referencePolish: 'never', fieldEngine }), 3);
       row(`${size}×${size}`, `${label}, no polish`, `fit ${(t2 / 1000).toFixed(2)} s`);
     }
   }
 }
+await threads?.close();
 process.stdout.write(`\nload average at the end: ${loadavg().map((v) => v.toFixed(2)).join(' ')}\n`);

@@ -16,6 +16,12 @@
 import type { DerivedScene } from './scene.ts';
 import type { ProgressMeter } from './progress.ts';
 
+/**
+ * 'normal' and 'high' as in ./field.ts; 'draft' truncates the free beam's trapezoid grid at 1e-5 of the
+ * peak amplitude instead of 1e-7 (the rest as 'normal').
+ */
+export type ReferenceAccuracy = 'draft' | 'normal' | 'high';
+
 export interface QuadraticSplit {
   /** ψ(x, 0) = px[0] + px[1]·x + px[2]·x²  (x in metres, radians). */
   px: [number, number, number];
@@ -151,16 +157,16 @@ export interface NumericGridPlan extends NumericGridInfo {
 }
 
 /** Amplitude below which the beam is truncated, per accuracy level. */
-const TRUNCATION = { normal: 1e-7, high: 1e-10 } as const;
+const TRUNCATION = { draft: 1e-5, normal: 1e-7, high: 1e-10 } as const;
 /** Factor by which the sampling frequency exceeds the highest local frequency of the integrand. */
-const MARGIN = { normal: 1.1, high: 1.3 } as const;
+const MARGIN = { draft: 1.1, normal: 1.1, high: 1.3 } as const;
 
 /** Chooses the grid for the trapezoid route; throws a RangeError when it would exceed maxPerAxis. */
 export function planNumericGrid(
   scene: DerivedScene,
   xs: Float64Array,
   ys: Float64Array,
-  accuracy: 'normal' | 'high',
+  accuracy: ReferenceAccuracy,
   nodeScale: number,
   maxPerAxis: number,
 ): NumericGridPlan {

@@ -4,7 +4,8 @@
  * with U_in = exp(ik r²/(2q₀)), 1/q₀ = 1/R + iλ/(πw²), the field after a distance L is
  * U = (q₀/q)·exp(ik r²/(2q)), q = q₀ + L (same e^{+ik|P−Q|²/(2L)} kernel as physics notes §1,
  * common factor e^{ikL} omitted). A decentred collimated beam is the same pattern shifted.
- * Both routes are checked: the closed form and the trapezoid grid.
+ * Both routes are checked: the closed form and the trapezoid grid, also at the 'draft' accuracy (grid
+ * truncated at 1e-5 of the peak amplitude instead of 1e-7; used by the fit's reference-model polish).
  */
 import { describe, expect, it } from 'vitest';
 import type { BenchSetup } from '../../../core/setup/types.ts';
@@ -14,14 +15,15 @@ import { ProgressMeter } from '../../../core/optics/reference/progress.ts';
 import { bench, centredAxis } from './scenes.ts';
 
 /** Free-beam field U(P) = e^{ik|P|²/2L}·S_all(P)/(iλL) by the chosen route. */
-function freeBeam(setup: BenchSetup, xs: Float64Array, ys: Float64Array, route: 'closed-form' | 'trapezoid') {
+function freeBeam(setup: BenchSetup, xs: Float64Array, ys: Float64Array, route: 'closed-form' | 'trapezoid' | 'trapezoid, draft') {
   const scene = deriveScene(setup, []);
   const re = new Float64Array(xs.length * ys.length);
   const im = new Float64Array(xs.length * ys.length);
   if (route === 'closed-form') {
     addAnalyticFreeBeam(scene, separableQuadratic(scene, setup.zernikeRadiusM)!, xs, ys, re, im);
   } else {
-    addNumericFreeBeam(scene, planNumericGrid(scene, xs, ys, 'normal', 1, 6000), xs, ys, re, im, new ProgressMeter(1));
+    const accuracy = route === 'trapezoid' ? 'normal' : 'draft';
+    addNumericFreeBeam(scene, planNumericGrid(scene, xs, ys, accuracy, 1, 6000), xs, ys, re, im, new ProgressMeter(1));
   }
   const L = setup.camera.distanceM;
   const k = scene.waveNumberRadPerM;
@@ -78,7 +80,7 @@ describe('free beam = propagated Gaussian beam (Siegman q-parameter law)', () =>
     ['far field of a small beam', bench({ beamRadiusM: 0.3e-3, distanceM: 2 })],
   ];
   for (const [name, setup] of setups) {
-    for (const route of ['closed-form', 'trapezoid'] as const) {
+    for (const route of ['closed-form', 'trapezoid', 'trapezoid, draft'] as const) {
       it(`${name}, ${route}`, () => {
         const u = freeBeam(setup, xs, ys, route);
         let peak = 0;
@@ -92,7 +94,7 @@ describe('free beam = propagated Gaussian beam (Siegman q-parameter law)', () =>
           }
         }
         expect(peak).toBeGreaterThan(0.05);
-        expect(worst / peak).toBeLessThan(route === 'closed-form' ? 1e-12 : 1e-6);
+        expect(worst / peak).toBeLessThan({ 'closed-form': 1e-12, trapezoid: 1e-6, 'trapezoid, draft': 1e-5 }[route]);
       });
     }
   }
