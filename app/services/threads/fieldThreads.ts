@@ -38,7 +38,7 @@ export type FieldPartRequest =
 type FieldPartReply = { id: number; value: unknown } | { id: number; error: { name: string; message: string } };
 
 /** Grids smaller than this are computed in the calling thread (the hand-over would cost more than it saves). */
-export const MIN_SHARED_POINTS = 2000;
+export const MIN_SHARED_POINTS = 3000;
 
 /** Defined (true) only in the electron-vite build of the main process and the web mode (electron.vite.config.ts). */
 declare const __SHADOWFRONT_BUNDLED__: boolean | undefined;

@@ -205,6 +205,173 @@ export function numericWork(plan: NumericGridPlan, nx: number, ny: number): numb
   return plan.halfY * (0.8 * plan.halfX * nx * 2 + nx * ny);
 }
 
+/** Row pairs per block in addNumericFreeBeam (blockRowSums and accumulateBlock are written out for 4). */
+const RB = 4;
+
+/**
+ * D and E of one block of RB = 4 row pairs for every column of a chunk (the inner loops of addNumericFreeBeam,
+ * kept in their own small functions so that the JIT optimises them early; the arithmetic is unchanged).
+ */
+function blockRowSums(
+  nc: number,
+  Mx: number,
+  iMax: number,
+  cosL: Float64Array,
+  sinL: Float64Array,
+  cpsR: Float64Array,
+  cpsI: Float64Array,
+  cmsR: Float64Array,
+  cmsI: Float64Array,
+  cpdR: Float64Array,
+  cpdI: Float64Array,
+  cmdR: Float64Array,
+  cmdI: Float64Array,
+  dR: Float64Array,
+  dI: Float64Array,
+  eR: Float64Array,
+  eI: Float64Array,
+): void {
+  for (let f = 0; f < nc; f++) columnRowSums(f * Mx, f * RB, iMax, cosL, sinL, cpsR, cpsI, cmsR, cmsI, cpdR, cpdI, cmdR, cmdI, dR, dI, eR, eI);
+}
+
+/** blockRowSums for one column: its cos/sin table starts at `base`, its D and E go to index q … q + 3. */
+function columnRowSums(
+  base: number,
+  q: number,
+  iMax: number,
+  cosL: Float64Array,
+  sinL: Float64Array,
+  cpsR: Float64Array,
+  cpsI: Float64Array,
+  cmsR: Float64Array,
+  cmsI: Float64Array,
+  cpdR: Float64Array,
+  cpdI: Float64Array,
+  cmdR: Float64Array,
+  cmdI: Float64Array,
+  dR: Float64Array,
+  dI: Float64Array,
+  eR: Float64Array,
+  eI: Float64Array,
+): void {
+  let d0r = 0, d0i = 0, e0r = 0, e0i = 0;
+  let d1r = 0, d1i = 0, e1r = 0, e1i = 0;
+  let d2r = 0, d2i = 0, e2r = 0, e2i = 0;
+  let d3r = 0, d3i = 0, e3r = 0, e3i = 0;
+  for (let i = 0, o = 0; i < iMax; i++, o += RB) {
+    const c = cosL[base + i];
+    const s = sinL[base + i];
+    d0r += c * cpsR[o] + s * cmsI[o];
+    d0i += c * cpsI[o] - s * cmsR[o];
+    e0r += c * cpdR[o] + s * cmdI[o];
+    e0i += c * cpdI[o] - s * cmdR[o];
+    d1r += c * cpsR[o + 1] + s * cmsI[o + 1];
+    d1i += c * cpsI[o + 1] - s * cmsR[o + 1];
+    e1r += c * cpdR[o + 1] + s * cmdI[o + 1];
+    e1i += c * cpdI[o + 1] - s * cmdR[o + 1];
+    d2r += c * cpsR[o + 2] + s * cmsI[o + 2];
+    d2i += c * cpsI[o + 2] - s * cmsR[o + 2];
+    e2r += c * cpdR[o + 2] + s * cmdI[o + 2];
+    e2i += c * cpdI[o + 2] - s * cmdR[o + 2];
+    d3r += c * cpsR[o + 3] + s * cmsI[o + 3];
+    d3i += c * cpsI[o + 3] - s * cmsR[o + 3];
+    e3r += c * cpdR[o + 3] + s * cmdI[o + 3];
+    e3i += c * cpdI[o + 3] - s * cmdR[o + 3];
+  }
+  dR[q] = d0r; dI[q] = d0i; eR[q] = e0r; eI[q] = e0i;
+  dR[q + 1] = d1r; dI[q + 1] = d1i; eR[q + 1] = e1r; eI[q + 1] = e1i;
+  dR[q + 2] = d2r; dI[q + 2] = d2i; eR[q + 2] = e2r; eI[q + 2] = e2i;
+  dR[q + 3] = d3r; dI[q + 3] = d3i; eR[q + 3] = e3r; eI[q + 3] = e3i;
+}
+
+/** The coefficients of row pair r of a block for every x node (the rest of the block's row; see blockRowSums). */
+function fillRowCoefficients(
+  r: number,
+  iLim: number,
+  Mx: number,
+  u: Float64Array,
+  ev: number,
+  invW2: number,
+  cx: number,
+  halfKKappa: number,
+  phYp: number,
+  phYm: number,
+  yp: number,
+  ym: number,
+  wf: DerivedScene['wavefront'],
+  cpsR: Float64Array,
+  cpsI: Float64Array,
+  cmsR: Float64Array,
+  cmsI: Float64Array,
+  cpdR: Float64Array,
+  cpdI: Float64Array,
+  cmdR: Float64Array,
+  cmdI: Float64Array,
+): void {
+  for (let i = 0; i < Mx; i++) {
+    const o = i * RB + r;
+    if (i >= iLim) {
+      cpsR[o] = cpsI[o] = cmsR[o] = cmsI[o] = cpdR[o] = cpdI[o] = cmdR[o] = cmdI[o] = 0;
+      continue;
+    }
+    const ui = u[i];
+    const amp = ev * Math.exp(-ui * ui * invW2);
+    const xp = cx + ui;
+    const xm = cx - ui;
+    // Phases of the four nodes (chirp + aberration); the amplitude is common to all four.
+    const ppx = halfKKappa * xp * xp;
+    const pmx = halfKKappa * xm * xm;
+    const a1 = ppx + phYp + wf.phaseRad(xp, yp); // (+u, +v)
+    const a2 = pmx + phYp + wf.phaseRad(xm, yp); // (−u, +v)
+    const a3 = ppx + phYm + wf.phaseRad(xp, ym); // (+u, −v)
+    const a4 = pmx + phYm + wf.phaseRad(xm, ym); // (−u, −v)
+    const c1r = amp * Math.cos(a1), c1i = amp * Math.sin(a1);
+    const c2r = amp * Math.cos(a2), c2i = amp * Math.sin(a2);
+    const c3r = amp * Math.cos(a3), c3i = amp * Math.sin(a3);
+    const c4r = amp * Math.cos(a4), c4i = amp * Math.sin(a4);
+    // Cp(±v) = c(+u) + c(−u), Cm(±v) = c(+u) − c(−u); then sums (s) and differences (d) over ±v.
+    const pPr = c1r + c2r, pPi = c1i + c2i, mPr = c1r - c2r, mPi = c1i - c2i;
+    const pMr = c3r + c4r, pMi = c3i + c4i, mMr = c3r - c4r, mMi = c3i - c4i;
+    cpsR[o] = pPr + pMr;
+    cpsI[o] = pPi + pMi;
+    cmsR[o] = mPr + mMr;
+    cmsI[o] = mPi + mMi;
+    cpdR[o] = pPr - pMr;
+    cpdI[o] = pPi - pMi;
+    cmdR[o] = mPr - mMr;
+    cmdI[o] = mPi - mMi;
+  }
+}
+
+/** Adds one block's D and E, turned by the rows' e^{∓iη}, to the accumulator (see blockRowSums). */
+function accumulateBlock(
+  ny: number,
+  nx: number,
+  f0: number,
+  nc: number,
+  cosEta: Float64Array,
+  sinEta: Float64Array,
+  dR: Float64Array,
+  dI: Float64Array,
+  eR: Float64Array,
+  eI: Float64Array,
+  bRe: Float64Array,
+  bIm: Float64Array,
+): void {
+  for (let fy = 0; fy < ny; fy++) {
+    const t = fy * RB;
+    const c0 = cosEta[t], c1 = cosEta[t + 1], c2 = cosEta[t + 2], c3 = cosEta[t + 3];
+    const s0 = sinEta[t], s1 = sinEta[t + 1], s2 = sinEta[t + 2], s3 = sinEta[t + 3];
+    const row = fy * nx + f0;
+    for (let f = 0, q = 0; f < nc; f++, q += RB) {
+      bRe[row + f] +=
+        c0 * dR[q] + s0 * eI[q] + c1 * dR[q + 1] + s1 * eI[q + 1] + c2 * dR[q + 2] + s2 * eI[q + 2] + c3 * dR[q + 3] + s3 * eI[q + 3];
+      bIm[row + f] +=
+        c0 * dI[q] - s0 * eR[q] + c1 * dI[q + 1] - s1 * eR[q + 1] + c2 * dI[q + 2] - s2 * eR[q + 2] + c3 * dI[q + 3] - s3 * eR[q + 3];
+    }
+  }
+}
+
 /**
  * Adds the trapezoid-rule free beam to S. Nodes sit at Q = c + (±(i+½)hx, ±(j+½)hy); the four
  * mirror images of each (u, v) share one cos/sin table, and mirrored rows share one pass.
@@ -249,7 +416,6 @@ export function addNumericFreeBeam(
 
   // Row pairs are processed in blocks of RB so that each cos/sin table entry, once loaded, serves
   // RB row pairs (the table is larger than the cache for big grids).
-  const RB = 4;
   const cpsR = new Float64Array(RB * Mx);
   const cpsI = new Float64Array(RB * Mx);
   const cmsR = new Float64Array(RB * Mx);
@@ -303,39 +469,7 @@ export function addNumericFreeBeam(
         const phYp = halfKKappa * yp * yp;
         const phYm = halfKKappa * ym * ym;
         const ev = Math.exp(-v * v * invW2) * hx * hy;
-        for (let i = 0; i < Mx; i++) {
-          const o = i * RB + r;
-          if (i >= iLim) {
-            cpsR[o] = cpsI[o] = cmsR[o] = cmsI[o] = cpdR[o] = cpdI[o] = cmdR[o] = cmdI[o] = 0;
-            continue;
-          }
-          const ui = u[i];
-          const amp = ev * Math.exp(-ui * ui * invW2);
-          const xp = cx + ui;
-          const xm = cx - ui;
-          // Phases of the four nodes (chirp + aberration); the amplitude is common to all four.
-          const ppx = halfKKappa * xp * xp;
-          const pmx = halfKKappa * xm * xm;
-          const a1 = ppx + phYp + wf.phaseRad(xp, yp); // (+u, +v)
-          const a2 = pmx + phYp + wf.phaseRad(xm, yp); // (−u, +v)
-          const a3 = ppx + phYm + wf.phaseRad(xp, ym); // (+u, −v)
-          const a4 = pmx + phYm + wf.phaseRad(xm, ym); // (−u, −v)
-          const c1r = amp * Math.cos(a1), c1i = amp * Math.sin(a1);
-          const c2r = amp * Math.cos(a2), c2i = amp * Math.sin(a2);
-          const c3r = amp * Math.cos(a3), c3i = amp * Math.sin(a3);
-          const c4r = amp * Math.cos(a4), c4i = amp * Math.sin(a4);
-          // Cp(±v) = c(+u) + c(−u), Cm(±v) = c(+u) − c(−u); then sums (s) and differences (d) over ±v.
-          const pPr = c1r + c2r, pPi = c1i + c2i, mPr = c1r - c2r, mPi = c1i - c2i;
-          const pMr = c3r + c4r, pMi = c3i + c4i, mMr = c3r - c4r, mMi = c3i - c4i;
-          cpsR[o] = pPr + pMr;
-          cpsI[o] = pPi + pMi;
-          cmsR[o] = mPr + mMr;
-          cmsI[o] = mPi + mMi;
-          cpdR[o] = pPr - pMr;
-          cpdI[o] = pPi - pMi;
-          cmdR[o] = mPr - mMr;
-          cmdI[o] = mPi - mMi;
-        }
+        fillRowCoefficients(r, iLim, Mx, u, ev, invW2, cx, halfKKappa, phYp, phYm, yp, ym, wf, cpsR, cpsI, cmsR, cmsI, cpdR, cpdI, cmdR, cmdI);
         if (iLim > iMax) iMax = iLim;
         work += iLim * nc * 2 + nc * ny;
         // Mirrored rows: e^{∓iη}, η = k v P_y / L → cosη·D − i·sinη·E.
@@ -347,50 +481,8 @@ export function addNumericFreeBeam(
         }
       }
       // Row sums for every column of the chunk: D = Σ_i cosℓ·Cps − i·sinℓ·Cms, E likewise with Cpd, Cmd.
-      for (let f = 0; f < nc; f++) {
-        const base = f * Mx;
-        let d0r = 0, d0i = 0, e0r = 0, e0i = 0;
-        let d1r = 0, d1i = 0, e1r = 0, e1i = 0;
-        let d2r = 0, d2i = 0, e2r = 0, e2i = 0;
-        let d3r = 0, d3i = 0, e3r = 0, e3i = 0;
-        for (let i = 0, o = 0; i < iMax; i++, o += RB) {
-          const c = cosL[base + i];
-          const s = sinL[base + i];
-          d0r += c * cpsR[o] + s * cmsI[o];
-          d0i += c * cpsI[o] - s * cmsR[o];
-          e0r += c * cpdR[o] + s * cmdI[o];
-          e0i += c * cpdI[o] - s * cmdR[o];
-          d1r += c * cpsR[o + 1] + s * cmsI[o + 1];
-          d1i += c * cpsI[o + 1] - s * cmsR[o + 1];
-          e1r += c * cpdR[o + 1] + s * cmdI[o + 1];
-          e1i += c * cpdI[o + 1] - s * cmdR[o + 1];
-          d2r += c * cpsR[o + 2] + s * cmsI[o + 2];
-          d2i += c * cpsI[o + 2] - s * cmsR[o + 2];
-          e2r += c * cpdR[o + 2] + s * cmdI[o + 2];
-          e2i += c * cpdI[o + 2] - s * cmdR[o + 2];
-          d3r += c * cpsR[o + 3] + s * cmsI[o + 3];
-          d3i += c * cpsI[o + 3] - s * cmsR[o + 3];
-          e3r += c * cpdR[o + 3] + s * cmdI[o + 3];
-          e3i += c * cpdI[o + 3] - s * cmdR[o + 3];
-        }
-        const q = f * RB;
-        dR[q] = d0r; dI[q] = d0i; eR[q] = e0r; eI[q] = e0i;
-        dR[q + 1] = d1r; dI[q + 1] = d1i; eR[q + 1] = e1r; eI[q + 1] = e1i;
-        dR[q + 2] = d2r; dI[q + 2] = d2i; eR[q + 2] = e2r; eI[q + 2] = e2i;
-        dR[q + 3] = d3r; dI[q + 3] = d3i; eR[q + 3] = e3r; eI[q + 3] = e3i;
-      }
-      for (let fy = 0; fy < ny; fy++) {
-        const t = fy * RB;
-        const c0 = cosEta[t], c1 = cosEta[t + 1], c2 = cosEta[t + 2], c3 = cosEta[t + 3];
-        const s0 = sinEta[t], s1 = sinEta[t + 1], s2 = sinEta[t + 2], s3 = sinEta[t + 3];
-        const row = fy * nx + f0;
-        for (let f = 0, q = 0; f < nc; f++, q += RB) {
-          bRe[row + f] +=
-            c0 * dR[q] + s0 * eI[q] + c1 * dR[q + 1] + s1 * eI[q + 1] + c2 * dR[q + 2] + s2 * eI[q + 2] + c3 * dR[q + 3] + s3 * eI[q + 3];
-          bIm[row + f] +=
-            c0 * dI[q] - s0 * eR[q] + c1 * dI[q + 1] - s1 * eR[q + 1] + c2 * dI[q + 2] - s2 * eR[q + 2] + c3 * dI[q + 3] - s3 * eR[q + 3];
-        }
-      }
+      blockRowSums(nc, Mx, iMax, cosL, sinL, cpsR, cpsI, cmsR, cmsI, cpdR, cpdI, cmdR, cmdI, dR, dI, eR, eI);
+      accumulateBlock(ny, nx, f0, nc, cosEta, sinEta, dR, dI, eR, eI, bRe, bIm);
       progress.advance(work);
     }
   }
