@@ -88,7 +88,7 @@ const helpers = helperCount();
 const threads = helpers > 0 ? new FieldThreads({ helpers }) : null;
 if (threads) await threads.whenReady();
 process.stdout.write(
-  `\nFit of one frame, 5 terms (median of 3 after a warm-up fit), as the shells run it: ${helpers + 1} thread(s)` +
+  `\nFit of one frame, 5 terms (median of 5 after a warm-up fit), as the shells run it: ${helpers + 1} thread(s)` +
     `${threads ? ' (the calling thread and ' + helpers + ' helper)' : ''}; "1 thread" rows: all in the calling thread:\n`,
 );
 for (const size of [256, 512]) {
@@ -110,15 +110,15 @@ for (const size of [256, 512]) {
     const t = time(() => {
       const r = measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3, fieldEngine });
       binning = r.regions[0].binning;
-    }, 3);
+    }, 5);
     row(`${size}×${size}`, label, `fit ${(t / 1000).toFixed(2)} s (super-pixels ${binning}×${binning})`);
     if (threads) {
-      const t1 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3 }), 3);
+      const t1 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3 }), 5);
       row(`${size}×${size}`, `${label}, 1 thread`, `fit ${(t1 / 1000).toFixed(2)} s`);
     }
     if (label.startsWith('whole')) {
       // the same fit without the reference-model polish (core/fit/referencePolish.ts), to show its cost
-      const t2 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3, referencePolish: 'never', fieldEngine }), 3);
+      const t2 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3, referencePolish: 'never', fieldEngine }), 5);
       row(`${size}×${size}`, `${label}, no polish`, `fit ${(t2 / 1000).toFixed(2)} s`);
     }
   }
