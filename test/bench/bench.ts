@@ -51,7 +51,9 @@ function row(...cells: string[]): void {
 process.stdout.write(`Shadowfront bench — node ${process.version}, ${cpus().length} cores (${cpus()[0]?.model ?? '?'})\n`);
 process.stdout.write('Times are medians of repeated runs after one warm-up run, in ms; points are pixel centres unless noted.\n\n');
 
-for (const size of [256, 512]) {
+// `npm run bench -- --fit-only` skips the simulators and times the fit alone.
+const fitOnly = process.argv.includes('--fit-only');
+for (const size of fitOnly ? [] : [256, 512]) {
   for (const [label, pitch] of [
     ['spot and rings, 5.5 µm px', 5.5e-6],
     ['whole shadow with edge', (1.3 * 2 * setup.disc.radiusM) / size],
