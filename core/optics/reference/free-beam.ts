@@ -205,55 +205,40 @@ export function numericWork(plan: NumericGridPlan, nx: number, ny: number): numb
   return plan.halfY * (0.8 * plan.halfX * nx * 2 + nx * ny);
 }
 
-/** Row pairs per block in addNumericFreeBeam (blockRowSums and accumulateBlock are written out for 4). */
+/** Row pairs per block in addNumericFreeBeam (columnRowSums and accumulateBlock are written out for 4). */
 const RB = 4;
 
 /**
- * D and E of one block of RB = 4 row pairs for every column of a chunk (the inner loops of addNumericFreeBeam,
- * kept in their own small functions so that the JIT optimises them early; the arithmetic is unchanged).
+ * The coefficients of a block of RB row pairs for every x node, interleaved [i·RB + r]: Cp = c(+u) + c(−u) and
+ * Cm = c(+u) − c(−u), each summed (s) and differenced (d) over ±v, real (R) and imaginary (I) parts.
  */
-function blockRowSums(
-  nc: number,
-  Mx: number,
-  iMax: number,
-  cosL: Float64Array,
-  sinL: Float64Array,
-  cpsR: Float64Array,
-  cpsI: Float64Array,
-  cmsR: Float64Array,
-  cmsI: Float64Array,
-  cpdR: Float64Array,
-  cpdI: Float64Array,
-  cmdR: Float64Array,
-  cmdI: Float64Array,
-  dR: Float64Array,
-  dI: Float64Array,
-  eR: Float64Array,
-  eI: Float64Array,
-): void {
-  for (let f = 0; f < nc; f++) columnRowSums(f * Mx, f * RB, iMax, cosL, sinL, cpsR, cpsI, cmsR, cmsI, cpdR, cpdI, cmdR, cmdI, dR, dI, eR, eI);
+interface BlockCoefficients {
+  psR: Float64Array;
+  psI: Float64Array;
+  msR: Float64Array;
+  msI: Float64Array;
+  pdR: Float64Array;
+  pdI: Float64Array;
+  mdR: Float64Array;
+  mdI: Float64Array;
 }
 
-/** blockRowSums for one column: its cos/sin table starts at `base`, its D and E go to index q … q + 3. */
-function columnRowSums(
-  base: number,
-  q: number,
-  iMax: number,
-  cosL: Float64Array,
-  sinL: Float64Array,
-  cpsR: Float64Array,
-  cpsI: Float64Array,
-  cmsR: Float64Array,
-  cmsI: Float64Array,
-  cpdR: Float64Array,
-  cpdI: Float64Array,
-  cmdR: Float64Array,
-  cmdI: Float64Array,
-  dR: Float64Array,
-  dI: Float64Array,
-  eR: Float64Array,
-  eI: Float64Array,
-): void {
+/** A block's row sums D and E for every column of a chunk, interleaved [f·RB + r]. */
+interface BlockSums {
+  dR: Float64Array;
+  dI: Float64Array;
+  eR: Float64Array;
+  eI: Float64Array;
+}
+
+/**
+ * D = Σ_i cosℓ·Cps − i·sinℓ·Cms and E likewise with Cpd, Cmd, for one column: its cos/sin table starts at
+ * `base`, its sums go to index q … q + 3. The inner loops of addNumericFreeBeam are kept in small functions,
+ * which the JIT optimises on the first call.
+ */
+function columnRowSums(base: number, q: number, iMax: number, cosL: Float64Array, sinL: Float64Array, k: BlockCoefficients, out: BlockSums): void {
+  const cpsR = k.psR, cpsI = k.psI, cmsR = k.msR, cmsI = k.msI;
+  const cpdR = k.pdR, cpdI = k.pdI, cmdR = k.mdR, cmdI = k.mdI;
   let d0r = 0, d0i = 0, e0r = 0, e0i = 0;
   let d1r = 0, d1i = 0, e1r = 0, e1i = 0;
   let d2r = 0, d2i = 0, e2r = 0, e2i = 0;
@@ -278,13 +263,14 @@ function columnRowSums(
     e3r += c * cpdR[o + 3] + s * cmdI[o + 3];
     e3i += c * cpdI[o + 3] - s * cmdR[o + 3];
   }
+  const { dR, dI, eR, eI } = out;
   dR[q] = d0r; dI[q] = d0i; eR[q] = e0r; eI[q] = e0i;
   dR[q + 1] = d1r; dI[q + 1] = d1i; eR[q + 1] = e1r; eI[q + 1] = e1i;
   dR[q + 2] = d2r; dI[q + 2] = d2i; eR[q + 2] = e2r; eI[q + 2] = e2i;
   dR[q + 3] = d3r; dI[q + 3] = d3i; eR[q + 3] = e3r; eI[q + 3] = e3i;
 }
 
-/** The coefficients of row pair r of a block for every x node (the rest of the block's row; see blockRowSums). */
+/** The coefficients of row pair r of a block for every x node (see BlockCoefficients). */
 function fillRowCoefficients(
   r: number,
   iLim: number,
@@ -299,15 +285,10 @@ function fillRowCoefficients(
   yp: number,
   ym: number,
   wf: DerivedScene['wavefront'],
-  cpsR: Float64Array,
-  cpsI: Float64Array,
-  cmsR: Float64Array,
-  cmsI: Float64Array,
-  cpdR: Float64Array,
-  cpdI: Float64Array,
-  cmdR: Float64Array,
-  cmdI: Float64Array,
+  k: BlockCoefficients,
 ): void {
+  const cpsR = k.psR, cpsI = k.psI, cmsR = k.msR, cmsI = k.msI;
+  const cpdR = k.pdR, cpdI = k.pdI, cmdR = k.mdR, cmdI = k.mdI;
   for (let i = 0; i < Mx; i++) {
     const o = i * RB + r;
     if (i >= iLim) {
@@ -343,7 +324,7 @@ function fillRowCoefficients(
   }
 }
 
-/** Adds one block's D and E, turned by the rows' e^{∓iη}, to the accumulator (see blockRowSums). */
+/** Adds one block's D and E, turned by the rows' e^{∓iη}, to the accumulator (see columnRowSums). */
 function accumulateBlock(
   ny: number,
   nx: number,
@@ -351,13 +332,11 @@ function accumulateBlock(
   nc: number,
   cosEta: Float64Array,
   sinEta: Float64Array,
-  dR: Float64Array,
-  dI: Float64Array,
-  eR: Float64Array,
-  eI: Float64Array,
+  sums: BlockSums,
   bRe: Float64Array,
   bIm: Float64Array,
 ): void {
+  const { dR, dI, eR, eI } = sums;
   for (let fy = 0; fy < ny; fy++) {
     const t = fy * RB;
     const c0 = cosEta[t], c1 = cosEta[t + 1], c2 = cosEta[t + 2], c3 = cosEta[t + 3];
@@ -416,14 +395,16 @@ export function addNumericFreeBeam(
 
   // Row pairs are processed in blocks of RB so that each cos/sin table entry, once loaded, serves
   // RB row pairs (the table is larger than the cache for big grids).
-  const cpsR = new Float64Array(RB * Mx);
-  const cpsI = new Float64Array(RB * Mx);
-  const cmsR = new Float64Array(RB * Mx);
-  const cmsI = new Float64Array(RB * Mx);
-  const cpdR = new Float64Array(RB * Mx);
-  const cpdI = new Float64Array(RB * Mx);
-  const cmdR = new Float64Array(RB * Mx);
-  const cmdI = new Float64Array(RB * Mx);
+  const coef: BlockCoefficients = {
+    psR: new Float64Array(RB * Mx),
+    psI: new Float64Array(RB * Mx),
+    msR: new Float64Array(RB * Mx),
+    msI: new Float64Array(RB * Mx),
+    pdR: new Float64Array(RB * Mx),
+    pdI: new Float64Array(RB * Mx),
+    mdR: new Float64Array(RB * Mx),
+    mdI: new Float64Array(RB * Mx),
+  };
   const cosEta = new Float64Array(RB * ny);
   const sinEta = new Float64Array(RB * ny);
 
@@ -431,10 +412,12 @@ export function addNumericFreeBeam(
   const chunk = Math.max(1, Math.min(nx, Math.floor((1 << 22) / Mx)));
   const cosL = new Float64Array(chunk * Mx);
   const sinL = new Float64Array(chunk * Mx);
-  const dR = new Float64Array(RB * chunk);
-  const dI = new Float64Array(RB * chunk);
-  const eR = new Float64Array(RB * chunk);
-  const eI = new Float64Array(RB * chunk);
+  const sums: BlockSums = {
+    dR: new Float64Array(RB * chunk),
+    dI: new Float64Array(RB * chunk),
+    eR: new Float64Array(RB * chunk),
+    eI: new Float64Array(RB * chunk),
+  };
 
   // Number of row pairs inside the truncation disc.
   let rows = 0;
@@ -469,7 +452,7 @@ export function addNumericFreeBeam(
         const phYp = halfKKappa * yp * yp;
         const phYm = halfKKappa * ym * ym;
         const ev = Math.exp(-v * v * invW2) * hx * hy;
-        fillRowCoefficients(r, iLim, Mx, u, ev, invW2, cx, halfKKappa, phYp, phYm, yp, ym, wf, cpsR, cpsI, cmsR, cmsI, cpdR, cpdI, cmdR, cmdI);
+        fillRowCoefficients(r, iLim, Mx, u, ev, invW2, cx, halfKKappa, phYp, phYm, yp, ym, wf, coef);
         if (iLim > iMax) iMax = iLim;
         work += iLim * nc * 2 + nc * ny;
         // Mirrored rows: e^{∓iη}, η = k v P_y / L → cosη·D − i·sinη·E.
@@ -481,8 +464,8 @@ export function addNumericFreeBeam(
         }
       }
       // Row sums for every column of the chunk: D = Σ_i cosℓ·Cps − i·sinℓ·Cms, E likewise with Cpd, Cmd.
-      blockRowSums(nc, Mx, iMax, cosL, sinL, cpsR, cpsI, cmsR, cmsI, cpdR, cpdI, cmdR, cmdI, dR, dI, eR, eI);
-      accumulateBlock(ny, nx, f0, nc, cosEta, sinEta, dR, dI, eR, eI, bRe, bIm);
+      for (let f = 0; f < nc; f++) columnRowSums(f * Mx, f * RB, iMax, cosL, sinL, coef, sums);
+      accumulateBlock(ny, nx, f0, nc, cosEta, sinEta, sums, bRe, bIm);
       progress.advance(work);
     }
   }
