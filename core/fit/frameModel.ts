@@ -69,6 +69,11 @@ export interface BinnedFrame {
   /** Which points of the xs × ys grid the used super-pixels need (1 = needed), row-major. */
   needed: Uint8Array;
   /**
+   * Model this frame with the fast model's first order only (no next-order term; FastModelOptions.thirdOrder),
+   * whose analytic Jacobian is exact: for a frame whose model error is corrected by the reference model.
+   */
+  firstOrder?: boolean;
+  /**
    * A correction added to the model's relative intensity per used super-pixel, held constant during a fit:
    * the reference model minus the fast model at a previous solution (./referencePolish.ts), or null.
    */
@@ -310,12 +315,13 @@ export function evaluateModel(
       derivativeTerms: withJacobian && !centreJacobian ? layout.terms : undefined,
       centerDerivatives: withJacobian && !centreJacobian,
       pointMask: grid ? null : fr.needed,
+      thirdOrder: !fr.firstOrder,
     });
     if (centreJacobian && grid) {
       // Blurred frame: derivatives at the super-pixel centres (with margin), blurred at super-pixel level.
       const cxs = Float64Array.from(grid.centreXs, (v) => v - cx);
       const cys = Float64Array.from(grid.centreYs, (v) => v - cy);
-      const cf = engine.fastField(setup, aberrations, cxs, cys, { nPhi: rimSamples[f], derivativeTerms: layout.terms, centerDerivatives: true });
+      const cf = engine.fastField(setup, aberrations, cxs, cys, { nPhi: rimSamples[f], derivativeTerms: layout.terms, centerDerivatives: true, thirdOrder: !fr.firstOrder });
       const sd = discOrders.length ? discShapeFieldDerivatives(setup, aberrations, cxs, cys, rimSamples[f], discOrders, rotation) : null;
       const dRe = sd ? [...cf.dRe, ...sd.dRe] : cf.dRe;
       const dIm = sd ? [...cf.dIm, ...sd.dIm] : cf.dIm;

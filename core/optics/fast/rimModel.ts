@@ -35,6 +35,13 @@ export interface FastModelOptions {
    * For callers that need only part of the grid (a circular region of interest).
    */
   pointMask?: Uint8Array | null;
+  /**
+   * Apply the next-order (third-derivative) correction where it is trusted (default true). Its derivatives
+   * are not computed, so where it is large the Jacobian is that of the first-order model only; a caller
+   * that needs the Jacobian of the values it gets (a fit whose model error is corrected otherwise, like the
+   * reference-model polish) turns it off.
+   */
+  thirdOrder?: boolean;
 }
 
 export interface FastFieldResult {
@@ -251,7 +258,7 @@ export function fastField(
   // Next-order correction for non-quadratic wavefronts, blended out near the shadow edge where its
   // expansion (in powers of 1/s) fails: full weight when the camera point is more than 2·d0 from the rim
   // (in the disc plane), none within d0, d0 = 12·a/N.
-  const third = thirdOrderTable(setup, t, poly, n, k);
+  const third = options.thirdOrder === false ? null : thirdOrderTable(setup, t, poly, n, k);
   let corrRe: Float64Array | null = null;
   let corrIm: Float64Array | null = null;
   let corrEps: Float64Array | null = null;
