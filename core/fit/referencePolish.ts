@@ -28,6 +28,19 @@ export function regionReachesShadowEdge(f: FitFrameInput, centerM: [number, numb
   return f.regionRadiusPx + offset > 0.8 * shadowRadiusPx;
 }
 
+/** Options of referenceCorrections. */
+export interface CorrectionOptions {
+  /** Completed fraction; return false to cancel. */
+  onProgress?: (fraction: number) => boolean | void;
+  /** Where the fields are computed (core/optics/fieldEngine.ts). */
+  engine?: FieldEngine;
+  /**
+   * The fit's fast-model intensity per used super-pixel of each frame at p (without any correction), when the
+   * caller already has it (from the model evaluation at p); computed here otherwise.
+   */
+  fastIntensities?: readonly (Float64Array | null)[];
+}
+
 /**
  * The correction (reference − fast, relative intensity) per used super-pixel of each frame at
  * parameters p, or null for a frame that is skipped. `rimSamples` are the fit's, so that the fast
@@ -39,9 +52,9 @@ export function referenceCorrections(
   p: Float64Array,
   rimSamples: number[],
   which: boolean[],
-  onProgress?: (fraction: number) => boolean | void,
-  engine: FieldEngine = localFieldEngine,
+  options: CorrectionOptions = {},
 ): (Float64Array | null)[] {
+  const { onProgress, engine = localFieldEngine } = options;
   const nz = layout.terms.length;
   const aberrations = modelAberrations(layout, p);
   const todo = which.filter(Boolean).length;
@@ -61,13 +74,27 @@ export function referenceCorrections(
       accuracy: 'draft',
       onProgress: onProgress ? (g) => onProgress((done + 0.9 * g) / todo) : undefined,
     });
-    const field = engine.fastField(setup, aberrations, xs, ys, { nPhi: rimSamples[f], pointMask: grid ? null : fr.needed });
-    const fast = new Float64Array(field.re.length);
-    for (let k = 0; k < fast.length; k++) fast[k] = field.re[k] * field.re[k] + field.im[k] * field.im[k];
     done++;
     const a = reduce(ref);
-    const b = reduce(fast);
+    const b = options.fastIntensities?.[f] ?? reduce(fastIntensity(engine, setup, aberrations, xs, ys, rimSamples[f], grid ? null : fr.needed, !fr.firstOrder));
+    if (b.length !== a.length) throw new RangeError(`frame ${f + 1}: ${b.length} fast-model intensities for ${a.length} super-pixels`);
     for (let u = 0; u < a.length; u++) a[u] -= b[u];
     return a;
   });
+}
+
+function fastIntensity(
+  engine: FieldEngine,
+  setup: ReturnType<typeof modelSetup>,
+  aberrations: ReturnType<typeof modelAberrations>,
+  xs: Float64Array,
+  ys: Float64Array,
+  nPhi: number,
+  pointMask: Uint8Array | null,
+  thirdOrder: boolean,
+): Float64Array {
+  const field = engine.fastField(setup, aberrations, xs, ys, { nPhi, pointMask, thirdOrder });
+  const out = new Float64Array(field.re.length);
+  for (let k = 0; k < out.length; k++) out[k] = field.re[k] * field.re[k] + field.im[k] * field.im[k];
+  return out;
 }
