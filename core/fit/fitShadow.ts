@@ -502,24 +502,26 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   // When the coarse solution already describes the frames, the polish's first correction is computed there and
   // the fine stage runs once, with it in place. The correction changes with p only through the fast model's
   // small error (a second round moves the coefficients by about 1 % of the first move), so computing it a few σ
-  // from the solution costs nothing in accuracy, and a whole fast-model fit on the fine data is saved. A noise
-  // estimate needs the fast-model fit first, and so does a frame the coarse stage does not describe.
+  // from the solution costs nothing in accuracy, and a whole fast-model fit on the fine data is saved. A frame
+  // the coarse stage does not describe gets the fast-model fit first. (With the noise unknown, χ²/dof says
+  // nothing before the noise is estimated, which then happens after the polish, from its residuals.)
   const coarseChi2PerDof = sol.chi2 / coarseDof;
-  const polishEarly = !options.estimateNoise && coarseChi2PerDof <= 2 && polishFor(sol.params).some(Boolean);
+  const polishEarly = (options.estimateNoise || coarseChi2PerDof <= 2) && polishFor(sol.params).some(Boolean);
   let noiseNote: string | null = null;
+  const estimateNoise = () => {
+    const est = estimateNoiseModel(fine, sol.params, keptFine.value && sameParams(keptFine.value.p, sol.params) ? keptFine.value.intensity : undefined);
+    if (!est) return false;
+    for (const f of inputs) {
+      f.gainCountsPerElectron = est.gain;
+      f.readNoiseCounts = est.readNoise;
+    }
+    noiseNote = `the camera noise was estimated from the fit residuals (gain ${est.gain.toPrecision(3)} counts per electron, read noise ${est.readNoise.toPrecision(3)} counts): χ²/dof is ≈ 1 by construction; give --gain and --read-noise, or dark frames, for an independent check`;
+    return true;
+  };
   if (!polishEarly) {
     refreshSigma(fine, sol.params);
     sol = runLM(fine, sol.params, 0.7, 0.1);
-    if (options.estimateNoise) {
-      const est = estimateNoiseModel(fine, sol.params);
-      if (est) {
-        for (const f of inputs) {
-          f.gainCountsPerElectron = est.gain;
-          f.readNoiseCounts = est.readNoise;
-        }
-        noiseNote = `the camera noise was estimated from the fit residuals (gain ${est.gain.toPrecision(3)} counts per electron, read noise ${est.readNoise.toPrecision(3)} counts): χ²/dof is ≈ 1 by construction; give --gain and --read-noise, or dark frames, for an independent check`;
-      }
-    }
+    if (options.estimateNoise) estimateNoise();
     // The weights are refreshed at the solution and the fit repeated; the polish does both itself, so this
     // round is left to it when the noise model did not change.
     if (options.estimateNoise || !polishFor(sol.params).some(Boolean)) {
@@ -530,9 +532,10 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   const polishWhich = polishFor(sol.params);
   let polishNote: string | null = null;
   let polishUnsettled: string | null = null;
-  // A fit that does not describe the frame (wrong setup, wrong minimum) gains nothing from the polish.
+  // A fit that does not describe the frame (wrong setup, wrong minimum) gains nothing from the polish. (With
+  // the noise estimated from the residuals χ²/dof cannot tell.)
   const chi2BeforePolish = polishEarly ? coarseChi2PerDof : sol.chi2 / Math.max(1, fine.data.length - np);
-  if (polishWhich.some(Boolean) && chi2BeforePolish > 2) {
+  if (polishWhich.some(Boolean) && !options.estimateNoise && chi2BeforePolish > 2) {
     polishNote = `reference-model polish not run: χ²/dof = ${chi2BeforePolish.toFixed(2)} before it, so the model does not describe the frame`;
   } else if (polishWhich.some(Boolean)) {
     let rounds = 0;
@@ -616,6 +619,13 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
       sol = runLM(fine, sol.params, 0.88, 0.02);
       polishNote = `the reference-model polish was skipped (${(err as Error).message}); near the shadow edge the uncertainties may be optimistic`;
     }
+  }
+  if (polishEarly && options.estimateNoise && estimateNoise()) {
+    // The weights under the estimated noise, and the fit repeated from the solution (its kept evaluation serves
+    // the weights and the first step).
+    const kept = keptFine.value && sameParams(keptFine.value.p, sol.params) ? keptFine.value : null;
+    refreshSigma(fine, sol.params, kept?.intensity);
+    sol = runLM(fine, sol.params, 0.89, 0.01, kept);
   }
   step(0.9, 'uncertainties');
   // A blurred frame's steps used centre-sampled derivatives; the covariance takes the pixel-integrated ones.
@@ -801,8 +811,8 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
  * Fit the noise model var = (gain·S + read²)/(pixels per super-pixel · frames) to the squared residuals
  * by weighted linear regression (S = model signal above background), iterated twice for the weights.
  */
-function estimateNoiseModel(pr: Problem, p: Float64Array): { gain: number; readNoise: number } | null {
-  const ev = evaluateModel(pr.frames, pr.layout, p, false, pr.rim, 'exact', pr.engine);
+function estimateNoiseModel(pr: Problem, p: Float64Array, intensity?: Float64Array): { gain: number; readNoise: number } | null {
+  const ev = intensity ? { intensity, model: modelFromIntensity(pr, p, intensity) } : evaluateModel(pr.frames, pr.layout, p, false, pr.rim, 'exact', pr.engine);
   const nz = pr.layout.terms.length;
   const xs: number[] = [];
   const ys: number[] = [];
