@@ -552,7 +552,8 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
         const before = sol.params;
         // The model at `before` with its Jacobian: kept from the fit that ended there, or evaluated now. Its
         // intensity (less the correction in place) is the fast model's that the correction is measured from.
-        let kept = keptFine.value && sameParams(keptFine.value.p, before) ? keptFine.value : null;
+        const last = keptFine.value as KeptEvaluation | null; // (set by runLM, which the compiler does not follow)
+        let kept: KeptEvaluation | null = last && sameParams(last.p, before) ? last : null;
         if (!kept) {
           const ev = evaluateModel(fine.frames, layout, before, true, fine.rim, 'centre', engine);
           kept = { p: Float64Array.from(before), intensity: ev.intensity, jacobian: ev.jacobian!, mode: 'centre' };
