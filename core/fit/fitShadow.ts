@@ -321,6 +321,9 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   const search = searchBinning === coarseBinning ? coarse : makeProblem(searchBinning, 2);
   // The coarse stages blur a finite source at super-pixel level (cheaper; they only find the basin).
   for (const pr of [coarse, search]) if (pr !== fine) pr.frames.forEach((f) => (f.blurLevel = 'super'));
+  // The search's own frames take the fast model's first order (no next-order factor; 40 % cheaper per value):
+  // it picked the same defocus as the full model in all 80 trials of the accuracy study.
+  if (search !== coarse) search.frames.forEach((f) => (f.firstOrder = true));
 
   // --- start: centres, coarse search on defocus with scale and background solved linearly
   step(0, 'coarse search');
@@ -405,9 +408,11 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
       // Steps below 1 % of σ change nothing that matters; the residuals are exact, the step Jacobian is not.
       stepTolerance: 0.01,
       chi2Tolerance: 1e-8,
-      chi2AbsoluteTolerance: 0.01,
-      // Derivatives cost about twice the values; on the final binning, starting close, the kept Jacobian
-      // serves several steps (the coarse stages start far away and are cheap).
+      // The coarse stages only find the start: they stop within Δχ² = 2 of their own minimum (about 1.4σ in
+      // the worst direction), and the fine stage moves on from there.
+      chi2AbsoluteTolerance: pr === fine ? 0.01 : 2,
+      // Derivatives cost about five times the values; on the final binning, starting close, the kept Jacobian
+      // serves several steps (the coarse stages start far away).
       reuseJacobian: pr === fine,
       // The step Jacobian leaves out the third-order (coma) correction's derivatives, good to about 0.2σ near
       // the minimum: a rejected step smaller than that ends the fit instead of raising λ step by step.
