@@ -368,10 +368,10 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   let best = Float64Array.from(p);
   let bestC2 = setScaleBackground(best);
   if (iDefocus >= 0) {
-    // Defocus from −0.4 to 0.4 waves every 0.05, then the two points halfway to the best one's neighbours. The
+    // Defocus from −0.4 to 0.4 waves every 0.1, then halving towards the best point (±0.05, then ±0.025). The
     // χ² profile along defocus had a single minimum on a 0.025-wave grid in all 80 trials of the accuracy study
     // (test/bench/fit-accuracy.ts, shadow interior and whole shadow), and this finds the same grid point as
-    // that grid in all of them, with 19 evaluations instead of 33.
+    // that grid in all of them, with 12 evaluations after the start's instead of 33.
     const tryDefocus = (c: number) => {
       const q = Float64Array.from(p);
       q[iDefocus] = c;
@@ -381,14 +381,18 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
         best = q;
       }
     };
+    // The start (defocus 0) is already evaluated; then every 0.1 waves, and halfway to the best point's
+    // neighbours twice (0.05, then 0.025).
     const grid: number[] = [];
-    for (let i = -8; i <= 8; i++) grid.push(Math.round(i * 50) / 1000);
+    for (let i = -4; i <= 4; i++) if (i !== 0 || p[iDefocus] !== 0) grid.push(Math.round(i * 100) / 1000);
     grid.forEach((c, gi) => {
       tryDefocus(c);
-      step((0.18 * (gi + 1)) / grid.length, 'coarse search');
+      step((0.16 * (gi + 1)) / grid.length, 'coarse search');
     });
-    const centre = best[iDefocus];
-    for (const c of [centre - 0.025, centre + 0.025]) if (c >= -0.4 - 1e-9 && c <= 0.4 + 1e-9) tryDefocus(Math.round(c * 1000) / 1000);
+    for (const half of [0.05, 0.025]) {
+      const centre = best[iDefocus];
+      for (const c of [centre - half, centre + half]) if (c >= -0.4 - 1e-9 && c <= 0.4 + 1e-9) tryDefocus(Math.round(c * 1000) / 1000);
+    }
     step(0.2, 'coarse search');
   }
 
