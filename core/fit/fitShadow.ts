@@ -33,7 +33,7 @@ import { summariseDiscShape } from './disc/summary.ts';
 import { profileCovariance } from './disc/propagate.ts';
 import { sourceBlurDiameterM } from './sourceBlur.ts';
 import { localFieldEngine, type FieldEngine } from '../optics/fieldEngine.ts';
-import { referenceCorrections, regionReachesShadowEdge, type PolishMode } from './referencePolish.ts';
+import { regionReachesShadowEdge, startReferenceCorrections, type PolishMode } from './referencePolish.ts';
 
 export const DEFAULT_TERMS = [3, 4, 5, 7, 8] as const;
 export const OPTIONAL_TERMS = [6, 9, 12] as const;
@@ -563,6 +563,14 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
         // intensity (less the correction in place) is the fast model's that the correction is measured from.
         const last = keptFine.value as KeptEvaluation | null; // (set by runLM, which the compiler does not follow)
         let kept: KeptEvaluation | null = last && sameParams(last.p, before) ? last : null;
+        // The reference intensities are started first: an engine with helper threads computes them there
+        // while this thread evaluates the model and its Jacobian at `before` (neither needs the other).
+        const pendingCorrections = startReferenceCorrections(fine.frames, layout, before, fine.rim, polishWhich, {
+          onProgress: (g) => {
+            if (progress && progress(0.85 + 0.03 * g, 'reference-model check') === false) return false;
+          },
+          engine,
+        });
         if (!kept) {
           const ev = evaluateModel(fine.frames, layout, before, true, fine.rim, 'centre', engine);
           kept = { p: Float64Array.from(before), intensity: ev.intensity, jacobian: ev.jacobian!, mode: 'centre' };
@@ -577,13 +585,7 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
             row += fr.used.length;
           }
         }
-        const corr = referenceCorrections(fine.frames, layout, before, fine.rim, polishWhich, {
-          onProgress: (g) => {
-            if (progress && progress(0.85 + 0.03 * g, 'reference-model check') === false) return false;
-          },
-          engine,
-          fastIntensities,
-        });
+        const corr = pendingCorrections.finish(fastIntensities);
         // At `before` the corrected intensity is the fast one plus the new correction, and the kept Jacobian
         // serves (the correction is constant in p; seededEvaluation): the weights and the first step need no
         // new evaluation.

@@ -11,7 +11,7 @@
  * model error). Inside the shadow the correction is below the noise and is skipped by default.
  */
 import { effectiveDistanceM } from '../optics/geometry.ts';
-import { localFieldEngine, type FieldEngine } from '../optics/fieldEngine.ts';
+import { localFieldEngine, startReference, type FieldEngine } from '../optics/fieldEngine.ts';
 import { modelAberrations, modelSetup, stencilReducer, type BinnedFrame, type FitFrameInput, type ModelLayout } from './frameModel.ts';
 import { blurredGrid, sourceBlurDiameterM } from './sourceBlur.ts';
 
@@ -54,12 +54,37 @@ export function referenceCorrections(
   which: boolean[],
   options: CorrectionOptions = {},
 ): (Float64Array | null)[] {
+  return startReferenceCorrections(frames, layout, p, rimSamples, which, options).finish(options.fastIntensities);
+}
+
+/** Corrections whose reference intensities are being computed (startReferenceCorrections). */
+export interface PendingCorrections {
+  /**
+   * Waits for the reference intensities and returns the corrections, as referenceCorrections does; the fast
+   * intensities are computed here for frames without one.
+   */
+  finish(fastIntensities?: readonly (Float64Array | null)[]): (Float64Array | null)[];
+}
+
+/**
+ * referenceCorrections in two steps: the reference intensities are started now on the engine, beside the
+ * caller's next work where the engine can (a helper thread; core/optics/fieldEngine.ts), and `finish` waits
+ * for them. The result is the same as referenceCorrections'.
+ */
+export function startReferenceCorrections(
+  frames: BinnedFrame[],
+  layout: ModelLayout,
+  p: Float64Array,
+  rimSamples: number[],
+  which: boolean[],
+  options: Omit<CorrectionOptions, 'fastIntensities'> = {},
+): PendingCorrections {
   const { onProgress, engine = localFieldEngine } = options;
   const nz = layout.terms.length;
   const aberrations = modelAberrations(layout, p);
   const todo = which.filter(Boolean).length;
   let done = 0;
-  return frames.map((fr, f) => {
+  const parts = frames.map((fr, f) => {
     if (!which[f]) return null;
     // The frame's model setup at p: distance and disc-radius offsets, a fitted disc shape, the source size.
     const setup = modelSetup(fr.input, layout, p);
@@ -70,17 +95,28 @@ export function referenceCorrections(
     const xs = Float64Array.from(grid ? grid.xs : fr.xs, (v) => v - cx);
     const ys = Float64Array.from(grid ? grid.ys : fr.ys, (v) => v - cy);
     const reduce = grid ? (v: Float64Array) => grid.reduce(v) : stencilReducer(fr);
-    const ref = engine.referenceIntensity(setup, aberrations, xs, ys, {
+    const pending = startReference(engine, setup, aberrations, xs, ys, {
       accuracy: 'draft',
       onProgress: onProgress ? (g) => onProgress((done + 0.9 * g) / todo) : undefined,
     });
-    done++;
-    const a = reduce(ref);
-    const b = options.fastIntensities?.[f] ?? reduce(fastIntensity(engine, setup, aberrations, xs, ys, rimSamples[f], grid ? null : fr.needed, !fr.firstOrder));
-    if (b.length !== a.length) throw new RangeError(`frame ${f + 1}: ${b.length} fast-model intensities for ${a.length} super-pixels`);
-    for (let u = 0; u < a.length; u++) a[u] -= b[u];
-    return a;
+    return { setup, xs, ys, grid, reduce, pending };
   });
+  return {
+    finish(fastIntensities) {
+      return frames.map((fr, f) => {
+        const part = parts[f];
+        if (!part) return null;
+        const ref = part.pending(() => !onProgress || onProgress(done / todo) !== false);
+        done++;
+        const a = part.reduce(ref);
+        const b =
+          fastIntensities?.[f] ?? part.reduce(fastIntensity(engine, part.setup, aberrations, part.xs, part.ys, rimSamples[f], part.grid ? null : fr.needed, !fr.firstOrder));
+        if (b.length !== a.length) throw new RangeError(`frame ${f + 1}: ${b.length} fast-model intensities for ${a.length} super-pixels`);
+        for (let u = 0; u < a.length; u++) a[u] -= b[u];
+        return a;
+      });
+    },
+  };
 }
 
 function fastIntensity(

@@ -8,7 +8,8 @@
  * - fast model: cut into blocks of rows (each row is computed on its own: the saddle-point warm start
  *   restarts at every row); the caller fixes N_φ from the whole grid first.
  * - reference model: cut into blocks of columns, with the quadrature planned for the whole grid
- *   (`planXsM`, `planYsM`), so that every part uses the same nodes.
+ *   (`planXsM`, `planYsM`), so that every part uses the same nodes; or computed whole on one helper while the
+ *   caller goes on (`startReferenceIntensity`).
  */
 import type { BenchSetup, ZernikeTerm } from '../setup/types.ts';
 import { chooseRimSamples, fastField, type FastFieldResult, type FastModelOptions } from './fast/rimModel.ts';
@@ -17,6 +18,38 @@ import { referenceIntensity, type ReferenceIntensityOptions } from './reference/
 export interface FieldEngine {
   fastField(setup: BenchSetup, aberrations: readonly ZernikeTerm[], xsM: Float64Array, ysM: Float64Array, options?: FastModelOptions): FastFieldResult;
   referenceIntensity(setup: BenchSetup, aberrations: readonly ZernikeTerm[], xsM: Float64Array, ysM: Float64Array, options?: ReferenceIntensityOptions): Float64Array;
+  /**
+   * Optional: starts the reference intensity where it runs beside the caller's next calls (a helper thread),
+   * and returns a function that waits for it (`keepOn`, polled while waiting, returns false to cancel: an
+   * Error named 'CancelledError'). The result equals referenceIntensity's. Engines without it compute the
+   * reference when it is waited for (startReference below).
+   */
+  startReferenceIntensity?(
+    setup: BenchSetup,
+    aberrations: readonly ZernikeTerm[],
+    xsM: Float64Array,
+    ysM: Float64Array,
+    options?: ReferenceIntensityOptions,
+  ): PendingIntensity;
+}
+
+/** A reference intensity being computed: waiting returns it. */
+export type PendingIntensity = (keepOn?: () => boolean) => Float64Array;
+
+/**
+ * The reference intensity started on `engine` beside the caller's next calls where the engine can, or else
+ * computed (with the progress callback) when it is waited for.
+ */
+export function startReference(
+  engine: FieldEngine,
+  setup: BenchSetup,
+  aberrations: readonly ZernikeTerm[],
+  xsM: Float64Array,
+  ysM: Float64Array,
+  options: ReferenceIntensityOptions = {},
+): PendingIntensity {
+  if (engine.startReferenceIntensity) return engine.startReferenceIntensity(setup, aberrations, xsM, ysM, options);
+  return () => engine.referenceIntensity(setup, aberrations, xsM, ysM, options);
 }
 
 /** The fields computed in the calling thread. */

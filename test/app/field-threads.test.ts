@@ -82,6 +82,25 @@ describe('helper threads', () => {
     expect(Array.from(shared)).toEqual(Array.from(local));
   });
 
+  it('compute a whole reference grid on a helper while this thread goes on, exactly', async () => {
+    const engine = await readyEngine();
+    const local = referenceIntensity(setup, aberrations, xs, ys);
+    const pending = engine.startReferenceIntensity(setup, aberrations, xs, ys);
+    // Meanwhile the fast model is computed here (the busy helper is left out), exactly as in one thread.
+    const options = { derivativeTerms: [3, 4, 5, 7, 8], centerDerivatives: true, pointMask: mask };
+    const fast = engine.fastField(setup, aberrations, xs, ys, options);
+    expect(Array.from(fast.re)).toEqual(Array.from(fastField(setup, aberrations, xs, ys, options).re));
+    expect(Array.from(pending())).toEqual(Array.from(local));
+    // The helper takes parts again afterwards.
+    expect(Array.from(engine.referenceIntensity(setup, aberrations, xs, ys))).toEqual(Array.from(local));
+  });
+
+  it('stop waiting for a reference grid when the caller cancels', async () => {
+    const engine = await readyEngine();
+    const pending = engine.startReferenceIntensity(setup, aberrations, xs, ys);
+    expect(() => pending(() => false)).toThrow(expect.objectContaining({ name: 'CancelledError' }));
+  });
+
   it('refuse a part that lies outside the points its quadrature was planned for', () => {
     expect(() => referenceIntensity(setup, aberrations, xs, ys, { planXsM: xs.slice(0, 10) })).toThrow(/xsM spans .* outside the planned points/);
   });

@@ -25,6 +25,7 @@ import {
   joinFastFieldRows,
   localFieldEngine,
   rowWork,
+  type PendingIntensity,
   splitByWork,
   type FieldEngine,
   type GridBlock,
@@ -54,6 +55,8 @@ class Helper {
   readonly port: MessagePort;
   readonly flags: Int32Array;
   broken = false;
+  /** A part started with startReferenceIntensity is under way: the helper takes no other part meanwhile. */
+  busy = false;
   private nextId = 1;
 
   constructor(
@@ -72,19 +75,25 @@ class Helper {
   }
 
   get ready(): boolean {
-    return !this.broken && Atomics.load(this.flags, 1) === 1;
+    return !this.broken && !this.busy && Atomics.load(this.flags, 1) === 1;
   }
 
   /** Posts a part; returns a function that waits for it (or computes it here when the helper fails). */
-  post(request: Omit<FieldPartRequest, 'id'>, computeHere: () => unknown): (localMs: number) => unknown {
+  post(request: Omit<FieldPartRequest, 'id'>, computeHere: () => unknown): (localMs: number, keepOn?: () => boolean) => unknown {
     const id = this.nextId++;
     this.port.postMessage({ ...request, id });
-    return (localMs) => this.wait(id, Math.max(this.minWaitMs, 20 * localMs), computeHere);
+    return (localMs, keepOn) => this.wait(id, Math.max(this.minWaitMs, 20 * localMs), computeHere, keepOn);
   }
 
-  private wait(id: number, timeoutMs: number, computeHere: () => unknown): unknown {
+  private wait(id: number, timeoutMs: number, computeHere: () => unknown, keepOn?: () => boolean): unknown {
     const deadline = Date.now() + timeoutMs;
     for (;;) {
+      if (keepOn && !keepOn()) {
+        // Abandoned: its reply, when it comes, is skipped by its id.
+        const err = new Error('cancelled');
+        err.name = 'CancelledError';
+        throw err;
+      }
       const seen = Atomics.load(this.flags, 0);
       const got = receiveMessageOnPort(this.port);
       if (got) {
@@ -207,6 +216,36 @@ export class FieldThreads implements FieldEngine {
     const localMs = performance.now() - t0;
     const parts = [{ block: blocks[0], values: mine }, ...waits.map((w, i) => ({ block: blocks[i + 1], values: w(localMs) as Float64Array }))];
     return joinColumns(parts, nx, ny);
+  }
+
+  /**
+   * The whole reference grid on one ready helper, while the calling thread goes on (its fast-model calls
+   * meanwhile leave that helper out); waiting returns it. Without a ready helper, the reference is computed,
+   * shared as referenceIntensity does, when it is waited for. Either way the result equals the one-thread one.
+   */
+  startReferenceIntensity(
+    setup: BenchSetup,
+    aberrations: readonly ZernikeTerm[],
+    xsM: Float64Array,
+    ysM: Float64Array,
+    options: ReferenceIntensityOptions = {},
+  ): PendingIntensity {
+    const helper = this.readyHelpers()[0];
+    if (!helper || xsM.length * ysM.length < MIN_SHARED_POINTS) return () => this.referenceIntensity(setup, aberrations, xsM, ysM, options);
+    const here = () => referenceIntensity(setup, aberrations, xsM, ysM, options);
+    helper.busy = true;
+    const wait = helper.post({ kind: 'reference', args: [setup, aberrations, xsM, ysM, withoutFunctions(options)] }, here);
+    let value: Float64Array | null = null;
+    return (keepOn) => {
+      if (!value) {
+        try {
+          value = wait(0, keepOn) as Float64Array;
+        } finally {
+          helper.busy = false;
+        }
+      }
+      return value;
+    };
   }
 
   /** Stops the helpers; later calls compute everything in the calling thread. */
