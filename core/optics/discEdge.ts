@@ -88,3 +88,39 @@ export function edgePointComplex(disc: DiscSpec, tr: number, ti: number, out: Fl
   out[7] = drr * si + dri * sr + out[1];
   return out;
 }
+
+const secondScratch = new Float64Array(4);
+
+/**
+ * Second derivative Q''(θ) of the edge point for complex θ = tr + i·ti: [Q''x, Q''y] as (re, im) pairs.
+ * With Q = r·(cos θ, sin θ): Q'' = r''·(cos θ, sin θ) + 2r'·(−sin θ, cos θ) − r·(cos θ, sin θ).
+ * Writes into `out` (default: a shared scratch array, overwritten by the next call).
+ */
+export function edgePointSecondComplex(disc: DiscSpec, tr: number, ti: number, out: Float64Array = secondScratch): Float64Array {
+  const a = disc.radiusM;
+  const e = disc.ellipticity;
+  // r, r', r'' as (re, im); cos(x+iy) = cos x cosh y − i sin x sinh y, sin(x+iy) = sin x cosh y + i cos x sinh y
+  let rr = a, ri = 0, drr = 0, dri = 0, d2r = 0, d2i = 0;
+  const add = (amp: number, order: number, x: number, y: number) => {
+    const ch = Math.cosh(y), sh = Math.sinh(y), cx = Math.cos(x), sx = Math.sin(x);
+    const cosr = cx * ch, cosi = -sx * sh, sinr = sx * ch, sini = cx * sh;
+    rr += amp * cosr;
+    ri += amp * cosi;
+    drr -= amp * order * sinr;
+    dri -= amp * order * sini;
+    d2r -= amp * order * order * cosr;
+    d2i -= amp * order * order * cosi;
+  };
+  if (e !== 0) add(a * e, 2, 2 * (tr - disc.ellipseAngleRad), 2 * ti);
+  for (const h of disc.edgeHarmonics) add(h.amplitudeM, h.order, h.order * tr - h.phaseRad, h.order * ti);
+  const ch = Math.cosh(ti), sh = Math.sinh(ti), ct = Math.cos(tr), st = Math.sin(tr);
+  const cr = ct * ch, ci = -st * sh;
+  const sr = st * ch, si = ct * sh;
+  // (r'' − r)·cos − 2r'·sin, (r'' − r)·sin + 2r'·cos
+  const ar = d2r - rr, ai = d2i - ri;
+  out[0] = ar * cr - ai * ci - 2 * (drr * sr - dri * si);
+  out[1] = ar * ci + ai * cr - 2 * (drr * si + dri * sr);
+  out[2] = ar * sr - ai * si + 2 * (drr * cr - dri * ci);
+  out[3] = ar * si + ai * sr + 2 * (drr * ci + dri * cr);
+  return out;
+}

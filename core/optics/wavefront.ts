@@ -131,3 +131,33 @@ export function wavefrontPolynomial(wavelengthM: number, zernikeRadiusM: number,
     wavelengthM,
   );
 }
+
+/**
+ * Third derivatives at the complex point (x, y) = (xr + i·xi, yr + i·yi):
+ * out = [xxx, xxy, xyy, yyy] as interleaved (re, im): length 8.
+ */
+export function evalThirdDerivativesComplex(p: Polynomial2D, xr: number, xi: number, yr: number, yi: number, out: Float64Array): Float64Array {
+  const n = p.degree + 1;
+  if (cxr.length < n + 1) {
+    cxr = new Float64Array(n + 1); cxi = new Float64Array(n + 1); cyr = new Float64Array(n + 1); cyi = new Float64Array(n + 1);
+  }
+  const xpr = cxr, xpi = cxi, ypr = cyr, ypi = cyi;
+  xpr[0] = 1; ypr[0] = 1; xpi[0] = 0; ypi[0] = 0;
+  for (let i = 1; i <= n; i++) {
+    xpr[i] = xpr[i - 1] * xr - xpi[i - 1] * xi;
+    xpi[i] = xpr[i - 1] * xi + xpi[i - 1] * xr;
+    ypr[i] = ypr[i - 1] * yr - ypi[i - 1] * yi;
+    ypi[i] = ypr[i - 1] * yi + ypi[i - 1] * yr;
+  }
+  out.fill(0);
+  for (let k = 0; k < p.coef.length; k++) {
+    const a = p.px[k];
+    const b = p.py[k];
+    const c = p.coef[k];
+    if (a > 2) addMonomial(out, 0, c * a * (a - 1) * (a - 2), xpr[a - 3], xpi[a - 3], ypr[b], ypi[b]);
+    if (a > 1 && b > 0) addMonomial(out, 1, c * a * (a - 1) * b, xpr[a - 2], xpi[a - 2], ypr[b - 1], ypi[b - 1]);
+    if (a > 0 && b > 1) addMonomial(out, 2, c * a * b * (b - 1), xpr[a - 1], xpi[a - 1], ypr[b - 2], ypi[b - 2]);
+    if (b > 2) addMonomial(out, 3, c * b * (b - 1) * (b - 2), xpr[a], xpi[a], ypr[b - 3], ypi[b - 3]);
+  }
+  return out;
+}

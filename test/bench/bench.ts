@@ -31,8 +31,8 @@ function median(xs: number[]): number {
   return s[Math.floor(s.length / 2)];
 }
 
-function time(fn: () => unknown, repeats: number): number {
-  fn(); // warm-up (JIT), not counted
+function time(fn: () => unknown, repeats: number, warmups = 1): number {
+  for (let i = 0; i < warmups; i++) fn(); // warm-up (JIT), not counted
   const t: number[] = [];
   for (let i = 0; i < repeats; i++) {
     const t0 = performance.now();
@@ -85,12 +85,15 @@ import type { Scene } from '../../core/setup/types.ts';
 import { localFieldEngine } from '../../core/optics/fieldEngine.ts';
 import { FieldThreads, helperCount } from '../../app/services/threads/fieldThreads.ts';
 
+// Warm-up fits before each timed row: the first fits in a process (and in a new helper thread) run 1.5–2×
+// slower while the JIT compiles, which one warm-up did not cover for the first row.
+const FIT_WARMUPS = 3;
 // The shells' fits share each model grid with helper threads (app/services/threads/fieldThreads.ts).
 const helpers = helperCount();
 const threads = helpers > 0 ? new FieldThreads({ helpers }) : null;
 if (threads) await threads.whenReady();
 process.stdout.write(
-  `\nFit of one frame, 5 terms (median of 5 after a warm-up fit), as the shells run it: ${helpers + 1} thread(s)` +
+  `\nFit of one frame, 5 terms (median of 5 after ${FIT_WARMUPS} warm-up fits), as the shells run it: ${helpers + 1} thread(s)` +
     `${threads ? ' (the calling thread and ' + helpers + ' helper)' : ''}; "1 thread" rows: all in the calling thread:\n`,
 );
 for (const size of [256, 512]) {
@@ -112,15 +115,15 @@ for (const size of [256, 512]) {
     const t = time(() => {
       const r = measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3, fieldEngine });
       binning = r.regions[0].binning;
-    }, 5);
+    }, 5, FIT_WARMUPS);
     row(`${size}×${size}`, label, `fit ${(t / 1000).toFixed(2)} s (super-pixels ${binning}×${binning})`);
     if (threads) {
-      const t1 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3 }), 5);
+      const t1 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3 }), 5, FIT_WARMUPS);
       row(`${size}×${size}`, `${label}, 1 thread`, `fit ${(t1 / 1000).toFixed(2)} s`);
     }
     if (label.startsWith('whole')) {
       // the same fit without the reference-model polish (core/fit/referencePolish.ts), to show its cost
-      const t2 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3, referencePolish: 'never', fieldEngine }), 5);
+      const t2 = time(() => void measureBeam([{ setup: scene, prepared }], { gainCountsPerElectron: 1, readNoiseCounts: 3, referencePolish: 'never', fieldEngine }), 5, FIT_WARMUPS);
       row(`${size}×${size}`, `${label}, no polish`, `fit ${(t2 / 1000).toFixed(2)} s`);
     }
   }

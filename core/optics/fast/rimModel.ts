@@ -18,9 +18,9 @@
  * Intensities are relative to the incident peak intensity at the disc plane.
  */
 import type { BenchSetup, ZernikeTerm } from '../../setup/types.ts';
-import { edgePoint, edgePointComplex, edgeRadius } from '../discEdge.ts';
+import { edgePoint, edgePointComplex, edgePointSecondComplex, edgeRadius } from '../discEdge.ts';
 import { effectiveDistanceM } from '../geometry.ts';
-import { emptyDerivs, evalPolynomial, evalPolynomialComplex, wavefrontPolynomial, zernikePolynomialM, type Polynomial2D } from '../wavefront.ts';
+import { emptyDerivs, evalPolynomial, evalPolynomialComplex, evalThirdDerivativesComplex, wavefrontPolynomial, zernikePolynomialM, type Polynomial2D } from '../wavefront.ts';
 import { newSaddleResult, solveSaddle, type SaddleContext, type SaddleResult } from './saddle.ts';
 
 export interface FastModelOptions {
@@ -270,10 +270,6 @@ export function fastField(
   } else if (np === 0) rimSums(X, Y, n, nx, ny, rimRe, rimIm, mask);
   const d0 = (12 * setup.disc.radiusM) / n;
 
-  const termPolys = terms.map((jz) => ({
-    plus: wavefrontPolynomial(lambda, setup.zernikeRadiusM, [...aberrations, { j: jz, waves: 1e-5 }]),
-    minus: wavefrontPolynomial(lambda, setup.zernikeRadiusM, [...aberrations, { j: jz, waves: -1e-5 }]),
-  }));
   const termUnitPolys = terms.map((jz) => zernikePolynomialM([{ j: jz, value: 1 }], setup.zernikeRadiusM, lambda));
   const fbd = new Float64Array(2 * np);
   const ctx: SaddleContext = { k, lpM: lp, gamma: 1 / (k * setup.beam.radiusM ** 2), cx: setup.beam.centerM[0], cy: setup.beam.centerM[1], poly };
@@ -325,34 +321,14 @@ export function fastField(
           haveStart = true;
           totR += e0[0];
           totI += e0[1];
-          // Derivatives of the free-beam and pole terms (the rim sum is differentiated analytically).
-          // Without a pole near the rim: analytic (freeBeamDerivatives); with one: central differences of
-          // this part alone. dU = −i·d(tot)/(λL).
-          if (np > 0 && lastNearPoles === 0) {
-            freeBeamDerivatives(sad, lastWeight, termUnitPolys, k, kap, fx, fy, wantCenter, fbd);
+          // Derivatives of the free-beam and pole terms, exact (edgePartDerivatives; the rim sum is
+          // differentiated above). dU = −i·d(tot)/(λL).
+          if (np > 0) {
+            edgePartDerivatives(setup, sad, poly, termUnitPolys, n, k, kap, fx, fy, wantCenter, fbd);
             for (let p = 0; p < np; p++) {
               const sc = p >= nTerms ? lp / L : 1;
               dRe[p][pix] += pre * fbd[2 * p + 1] * sc;
               dIm[p][pix] -= pre * fbd[2 * p] * sc;
-            }
-          } else for (let p = 0; p < np; p++) {
-            let plus: [number, number] | null, minus: [number, number] | null, h: number, scale = 1;
-            if (p < nTerms) {
-              h = 1e-5;
-              plus = edgePart(setup, { ...ctx, poly: termPolys[p].plus }, fx, fy, n, sad, startQ);
-              minus = edgePart(setup, { ...ctx, poly: termPolys[p].minus }, fx, fy, n, sad, startQ);
-            } else {
-              h = (1e-9 * setup.disc.radiusM) / 1e-3; // metres in F
-              scale = lp / L; // dF/dP
-              const c = p - nTerms;
-              plus = edgePart(setup, ctx, fx + (c === 0 ? h : 0), fy + (c === 1 ? h : 0), n, sad, startQ);
-              minus = edgePart(setup, ctx, fx - (c === 0 ? h : 0), fy - (c === 1 ? h : 0), n, sad, startQ);
-            }
-            if (plus && minus) {
-              const dr = ((plus[0] - minus[0]) / (2 * h)) * scale;
-              const di = ((plus[1] - minus[1]) / (2 * h)) * scale;
-              dRe[p][pix] += pre * di;
-              dIm[p][pix] -= pre * dr;
             }
           }
         }
@@ -793,38 +769,59 @@ function rimSumsThirdOrder(
   }
 }
 
-/** Free-beam and pole terms for one camera point: U_all·(n_far_out/2 + n_near/4) − Σ_near R·π·cot(Np/2). */
+/**
+ * Near poles of the last singularWeight call (at most two), POLE numbers each: the root t of the quadratic
+ * form and the other root o, the pole p (complex φ), cot(Np/2) and the residue R, all as (re, im).
+ */
+const POLE = 10;
+const lastPoles = new Float64Array(2 * POLE);
 let lastWeight = 0;
 let lastNearPoles = 0;
 
+/** Free-beam and pole terms for one camera point: U_all·(n_far_out/2 + n_near/4) − Σ_near R·π·cot(Np/2). */
 function edgePart(setup: BenchSetup, ctx: SaddleContext, fx: number, fy: number, n: number, sad: SaddleResult, start?: Float64Array | null): [number, number] | null {
   if (!solveSaddle(ctx, fx, fy, sad, start).ok) {
     if (!start || !solveSaddle(ctx, fx, fy, sad).ok) return null;
   }
+  const weight = singularWeight(setup, sad, n);
   let cr = 0, ci = 0;
-  lastNearPoles = 0;
-  const weight = singularWeight(setup, sad, n, (rr, ri) => {
-    cr += rr;
-    ci += ri;
-    lastNearPoles++;
-  });
+  for (let q = 0; q < lastNearPoles; q++) {
+    const o = q * POLE;
+    const Rr = lastPoles[o + 8], Ri = lastPoles[o + 9], ctr = lastPoles[o + 6], cti = lastPoles[o + 7];
+    cr += Math.PI * (Rr * ctr - Ri * cti);
+    ci += Math.PI * (Rr * cti + Ri * ctr);
+  }
   lastWeight = weight;
   return [weight * sad.allRe - cr, weight * sad.allIm - ci];
 }
 
 const cplxScratch = new Float64Array(12);
 
+const thirdScratch = new Float64Array(8);
+const poleEdge = new Float64Array(8);
+/** Per near pole, the parts of its correction that do not depend on the parameter (see edgePartDerivatives). */
+const PP = 30;
+const polePre = new Float64Array(2 * PP);
+
 /**
- * Analytic derivatives of weight·U_all when no pole is near the rim (the weight is then constant):
- * with U_all = e^{iΦ(Q*)}·2π/√det(−iH(Q*)) and ∇Φ(Q*) = 0,
- *   ∂U/∂c = U·[i·k·Z(Q*) − ½·tr(H⁻¹·k∇∇Z(Q*))],  ∂U/∂F = −i·κ·(Q* − F)·U,
- * neglecting the third-derivative terms through the shift of Q* with c (small for smooth low-order aberrations).
- * Returns (re, im) of ∂(weight·U_all) into out[2p], out[2p+1].
+ * Exact derivatives of the edge part weight·U_all − Σ_near π·R·cot(Np/2) (edgePart, whose results for this
+ * camera point are in `sad`, `lastWeight` and `lastPoles`), with respect to the Zernike coefficients
+ * (`termPolys`, waves) and, when `center`, the point F in the disc plane. By implicit differentiation: for a
+ * parameter c with ∂Φ/∂c, ∂g/∂c and ∂H/∂c at the saddle Q* (g = ∇Φ, H = ∇∇Φ, M = H⁻¹, T = k∇∇∇W),
+ *   dQ* = −M·∂g,  dΦ0 = ∂Φ/∂c (∇Φ(Q*) = 0),  dH = ∂H + T·dQ*,  dU_all = U_all·(i·dΦ0 − ½·tr(M·dH)),
+ * the roots of H11 t² + 2H12 t + H22 = 0 move by dt = −(dH11 t² + 2dH12 t + dH22)/(2(H11 t + H12)),
+ * the pole (z_x − t·z_y = 0, z = Q(p) − Q*) by dp = (dQ*x − t·dQ*y + dt·z_y)/(Q'x − t·Q'y), and the residue
+ * R = e^{iΦ0}·A/(i·H11·B·D) (A = z·ν, B = Q'x − t·Q'y, D = z_x − o·z_y at p) by
+ *   dR/R = i·dΦ0 + dA/A − dH11/H11 − dB/B − dD/D;  d cot(Np/2) = −(N/2)·(1 + cot²)·dp.
+ * For a Zernike term ∂Φ = k·Z, ∂g = k∇Z, ∂H = k∇∇Z; for F: ∂Φ/∂F = −κ·(Q* − F), ∂g = −κ·e, ∂H = 0.
+ * Returns (re, im) of each derivative into out[2p], out[2p+1].
  */
-function freeBeamDerivatives(
+function edgePartDerivatives(
+  setup: BenchSetup,
   sad: SaddleResult,
-  weight: number,
+  poly: Polynomial2D,
   termPolys: Polynomial2D[],
+  n: number,
   k: number,
   kap: number,
   fx: number,
@@ -832,37 +829,145 @@ function freeBeamDerivatives(
   center: boolean,
   out: Float64Array,
 ): void {
-  const ur = weight * sad.allRe, ui = weight * sad.allIm;
   const h = sad.h;
-  // H⁻¹ (complex symmetric 2×2)
-  const detr = h[0] * h[4] - h[1] * h[5] - (h[2] * h[2] - h[3] * h[3]);
-  const deti = h[0] * h[5] + h[1] * h[4] - 2 * h[2] * h[3];
+  const h11r = h[0], h11i = h[1], h12r = h[2], h12i = h[3], h22r = h[4], h22i = h[5];
+  // M = H⁻¹
+  const detr = h11r * h22r - h11i * h22i - (h12r * h12r - h12i * h12i);
+  const deti = h11r * h22i + h11i * h22r - 2 * h12r * h12i;
   const dd = detr * detr + deti * deti;
-  const div = (ar: number, ai: number): [number, number] => [(ar * detr + ai * deti) / dd, (ai * detr - ar * deti) / dd];
-  const [m11r, m11i] = div(h[4], h[5]);
-  const [m22r, m22i] = div(h[0], h[1]);
-  const [m12r, m12i] = div(-h[2], -h[3]);
-  let o = 0;
-  for (const tp of termPolys) {
-    const d = evalPolynomialComplex(tp, sad.q[0], sad.q[1], sad.q[2], sad.q[3], cplxScratch);
-    // i·k·Z
-    let gr = -k * d[1], gi = k * d[0];
-    // −½ tr(H⁻¹·k∇∇Z) = −½ k (M11 Zxx + 2 M12 Zxy + M22 Zyy)
-    const tr = m11r * d[6] - m11i * d[7] + 2 * (m12r * d[8] - m12i * d[9]) + m22r * d[10] - m22i * d[11];
-    const ti = m11r * d[7] + m11i * d[6] + 2 * (m12r * d[9] + m12i * d[8]) + m22r * d[11] + m22i * d[10];
-    gr -= 0.5 * k * tr;
-    gi -= 0.5 * k * ti;
-    out[o++] = gr * ur - gi * ui;
-    out[o++] = gr * ui + gi * ur;
+  const idr = detr / dd, idi = -deti / dd;
+  const m11r = h22r * idr - h22i * idi, m11i = h22r * idi + h22i * idr;
+  const m22r = h11r * idr - h11i * idi, m22i = h11r * idi + h11i * idr;
+  const m12r = -(h12r * idr - h12i * idi), m12i = -(h12r * idi + h12i * idr);
+  const [qxr, qxi, qyr, qyi] = [sad.q[0], sad.q[1], sad.q[2], sad.q[3]];
+  const T = evalThirdDerivativesComplex(poly, qxr, qxi, qyr, qyi, thirdScratch);
+  const t1r = k * T[0], t1i = k * T[1], t2r = k * T[2], t2i = k * T[3], t3r = k * T[4], t3i = k * T[5], t4r = k * T[6], t4i = k * T[7];
+  const weight = lastWeight;
+  const uwr = weight * sad.allRe, uwi = weight * sad.allIm;
+  // 1/H11
+  const h11m = h11r * h11r + h11i * h11i;
+  const ih11r = h11r / h11m, ih11i = -h11i / h11m;
+  const nPoles = lastNearPoles;
+  for (let q = 0; q < nPoles; q++) {
+    const o = q * POLE, w = q * PP;
+    const tr = lastPoles[o], ti = lastPoles[o + 1], or = lastPoles[o + 2], oi = lastPoles[o + 3];
+    const pr = lastPoles[o + 4], pi = lastPoles[o + 5];
+    const e = edgePointComplex(setup.disc, pr, pi, poleEdge);
+    const s2 = edgePointSecondComplex(setup.disc, pr, pi);
+    const zxr = e[0] - qxr, zxi = e[1] - qxi, zyr = e[2] - qyr, zyi = e[3] - qyi;
+    const dxr = e[4], dxi = e[5], dyr = e[6], dyi = e[7]; // Q'
+    // A = zx·Q'y − zy·Q'x ; B = Q'x − t·Q'y ; D = zx − o·zy
+    const Ar = zxr * dyr - zxi * dyi - (zyr * dxr - zyi * dxi);
+    const Ai = zxr * dyi + zxi * dyr - (zyr * dxi + zyi * dxr);
+    const Br = dxr - (tr * dyr - ti * dyi), Bi = dxi - (tr * dyi + ti * dyr);
+    const Dr = zxr - (or * zyr - oi * zyi), Di = zxi - (or * zyi + oi * zyr);
+    const Am = Ar * Ar + Ai * Ai, Bm = Br * Br + Bi * Bi, Dm = Dr * Dr + Di * Di;
+    // 1/(2(H11 t + H12)), 1/(2(H11 o + H12))
+    const ptr = 2 * (h11r * tr - h11i * ti + h12r), pti = 2 * (h11r * ti + h11i * tr + h12i);
+    const ptm = ptr * ptr + pti * pti;
+    const por = 2 * (h11r * or - h11i * oi + h12r), poi = 2 * (h11r * oi + h11i * or + h12i);
+    const pom = por * por + poi * poi;
+    const cr = lastPoles[o + 6], ci = lastPoles[o + 7];
+    // (N/2)·(1 + cot²)
+    const c2r = 1 + cr * cr - ci * ci, c2i = 2 * cr * ci;
+    polePre[w] = tr; polePre[w + 1] = ti; polePre[w + 2] = or; polePre[w + 3] = oi;
+    polePre[w + 4] = zxr; polePre[w + 5] = zxi; polePre[w + 6] = zyr; polePre[w + 7] = zyi;
+    polePre[w + 8] = dxr; polePre[w + 9] = dxi; polePre[w + 10] = dyr; polePre[w + 11] = dyi;
+    polePre[w + 12] = s2[0]; polePre[w + 13] = s2[1]; polePre[w + 14] = s2[2]; polePre[w + 15] = s2[3];
+    polePre[w + 16] = Ar / Am; polePre[w + 17] = -Ai / Am; // 1/A
+    polePre[w + 18] = Br / Bm; polePre[w + 19] = -Bi / Bm; // 1/B
+    polePre[w + 20] = Dr / Dm; polePre[w + 21] = -Di / Dm; // 1/D
+    polePre[w + 22] = ptr / ptm; polePre[w + 23] = -pti / ptm;
+    polePre[w + 24] = por / pom; polePre[w + 25] = -poi / pom;
+    polePre[w + 26] = (n / 2) * c2r; polePre[w + 27] = (n / 2) * c2i;
+    polePre[w + 28] = cr; polePre[w + 29] = ci;
   }
-  if (center) {
-    for (let c = 0; c < 2; c++) {
-      const qr = sad.q[2 * c] - (c === 0 ? fx : fy), qi = sad.q[2 * c + 1];
-      // −iκ(qr + i·qi) = κ·qi − i·κ·qr
-      const gr = kap * qi, gi = -kap * qr;
-      out[o++] = gr * ur - gi * ui;
-      out[o++] = gr * ui + gi * ur;
+  const nTerms = termPolys.length;
+  const np = nTerms + (center ? 2 : 0);
+  for (let p = 0; p < np; p++) {
+    // ∂Φ, ∂g (→ dQ*), ∂H
+    let fr: number, fi: number, dqxr: number, dqxi: number, dqyr: number, dqyi: number;
+    let a11r = 0, a11i = 0, a12r = 0, a12i = 0, a22r = 0, a22i = 0;
+    if (p < nTerms) {
+      const d = evalPolynomialComplex(termPolys[p], qxr, qxi, qyr, qyi, cplxScratch);
+      fr = k * d[0]; fi = k * d[1];
+      const gxr = k * d[2], gxi = k * d[3], gyr = k * d[4], gyi = k * d[5];
+      dqxr = -(m11r * gxr - m11i * gxi + m12r * gyr - m12i * gyi);
+      dqxi = -(m11r * gxi + m11i * gxr + m12r * gyi + m12i * gyr);
+      dqyr = -(m12r * gxr - m12i * gxi + m22r * gyr - m22i * gyi);
+      dqyi = -(m12r * gxi + m12i * gxr + m22r * gyi + m22i * gyr);
+      a11r = k * d[6]; a11i = k * d[7]; a12r = k * d[8]; a12i = k * d[9]; a22r = k * d[10]; a22i = k * d[11];
+    } else if (p === nTerms) {
+      fr = -kap * (qxr - fx); fi = -kap * qxi;
+      dqxr = kap * m11r; dqxi = kap * m11i; dqyr = kap * m12r; dqyi = kap * m12i;
+    } else {
+      fr = -kap * (qyr - fy); fi = -kap * qyi;
+      dqxr = kap * m12r; dqxi = kap * m12i; dqyr = kap * m22r; dqyi = kap * m22i;
     }
+    // dH = ∂H + T·dQ*
+    const dh11r = a11r + (t1r * dqxr - t1i * dqxi) + (t2r * dqyr - t2i * dqyi);
+    const dh11i = a11i + (t1r * dqxi + t1i * dqxr) + (t2r * dqyi + t2i * dqyr);
+    const dh12r = a12r + (t2r * dqxr - t2i * dqxi) + (t3r * dqyr - t3i * dqyi);
+    const dh12i = a12i + (t2r * dqxi + t2i * dqxr) + (t3r * dqyi + t3i * dqyr);
+    const dh22r = a22r + (t3r * dqxr - t3i * dqxi) + (t4r * dqyr - t4i * dqyi);
+    const dh22i = a22i + (t3r * dqxi + t3i * dqxr) + (t4r * dqyi + t4i * dqyr);
+    // i·dΦ0 − ½·tr(M·dH)
+    const trr = m11r * dh11r - m11i * dh11i + 2 * (m12r * dh12r - m12i * dh12i) + m22r * dh22r - m22i * dh22i;
+    const tri = m11r * dh11i + m11i * dh11r + 2 * (m12r * dh12i + m12i * dh12r) + m22r * dh22i + m22i * dh22r;
+    const gr = -fi - 0.5 * trr, gi = fr - 0.5 * tri;
+    let outR = gr * uwr - gi * uwi, outI = gr * uwi + gi * uwr;
+    // dH11/H11
+    const lhr = dh11r * ih11r - dh11i * ih11i, lhi = dh11r * ih11i + dh11i * ih11r;
+    for (let q = 0; q < nPoles; q++) {
+      const o = q * POLE, w = q * PP;
+      const tr = polePre[w], ti = polePre[w + 1], or = polePre[w + 2], oi = polePre[w + 3];
+      const zxr = polePre[w + 4], zxi = polePre[w + 5], zyr = polePre[w + 6], zyi = polePre[w + 7];
+      const dxr = polePre[w + 8], dxi = polePre[w + 9], dyr = polePre[w + 10], dyi = polePre[w + 11];
+      const sxr = polePre[w + 12], sxi = polePre[w + 13], syr = polePre[w + 14], syi = polePre[w + 15];
+      // dt = −(dH11 t² + 2dH12 t + dH22)/(2(H11 t + H12)), likewise do
+      const tt2r = tr * tr - ti * ti, tt2i = 2 * tr * ti;
+      let nr = dh11r * tt2r - dh11i * tt2i + 2 * (dh12r * tr - dh12i * ti) + dh22r;
+      let ni = dh11r * tt2i + dh11i * tt2r + 2 * (dh12r * ti + dh12i * tr) + dh22i;
+      const dtr = -(nr * polePre[w + 22] - ni * polePre[w + 23]), dti = -(nr * polePre[w + 23] + ni * polePre[w + 22]);
+      const oo2r = or * or - oi * oi, oo2i = 2 * or * oi;
+      nr = dh11r * oo2r - dh11i * oo2i + 2 * (dh12r * or - dh12i * oi) + dh22r;
+      ni = dh11r * oo2i + dh11i * oo2r + 2 * (dh12r * oi + dh12i * or) + dh22i;
+      const dor = -(nr * polePre[w + 24] - ni * polePre[w + 25]), doi = -(nr * polePre[w + 25] + ni * polePre[w + 24]);
+      // dp = (dQ*x − t·dQ*y + dt·zy)/B
+      nr = dqxr - (tr * dqyr - ti * dqyi) + (dtr * zyr - dti * zyi);
+      ni = dqxi - (tr * dqyi + ti * dqyr) + (dtr * zyi + dti * zyr);
+      const ibr = polePre[w + 18], ibi = polePre[w + 19];
+      const dpr = nr * ibr - ni * ibi, dpi = nr * ibi + ni * ibr;
+      // dz = Q'·dp − dQ*
+      const dzxr = dxr * dpr - dxi * dpi - dqxr, dzxi = dxr * dpi + dxi * dpr - dqxi;
+      const dzyr = dyr * dpr - dyi * dpi - dqyr, dzyi = dyr * dpi + dyi * dpr - dqyi;
+      // Q''·dp
+      const exr = sxr * dpr - sxi * dpi, exi = sxr * dpi + sxi * dpr;
+      const eyr = syr * dpr - syi * dpi, eyi = syr * dpi + syi * dpr;
+      // dA = dzx·Q'y + zx·Q''y·dp − dzy·Q'x − zy·Q''x·dp
+      const dAr = dzxr * dyr - dzxi * dyi + (zxr * eyr - zxi * eyi) - (dzyr * dxr - dzyi * dxi) - (zyr * exr - zyi * exi);
+      const dAi = dzxr * dyi + dzxi * dyr + (zxr * eyi + zxi * eyr) - (dzyr * dxi + dzyi * dxr) - (zyr * exi + zyi * exr);
+      // dB = Q''x·dp − dt·Q'y − t·Q''y·dp
+      const dBr = exr - (dtr * dyr - dti * dyi) - (tr * eyr - ti * eyi);
+      const dBi = exi - (dtr * dyi + dti * dyr) - (tr * eyi + ti * eyr);
+      // dD = dzx − do·zy − o·dzy
+      const dDr = dzxr - (dor * zyr - doi * zyi) - (or * dzyr - oi * dzyi);
+      const dDi = dzxi - (dor * zyi + doi * zyr) - (or * dzyi + oi * dzyr);
+      // dR/R = i·dΦ0 + dA/A − dH11/H11 − dB/B − dD/D
+      const iar = polePre[w + 16], iai = polePre[w + 17], idr2 = polePre[w + 20], idi2 = polePre[w + 21];
+      const lr = -fi + (dAr * iar - dAi * iai) - lhr - (dBr * ibr - dBi * ibi) - (dDr * idr2 - dDi * idi2);
+      const li = fr + (dAr * iai + dAi * iar) - lhi - (dBr * ibi + dBi * ibr) - (dDr * idi2 + dDi * idr2);
+      const Rr = lastPoles[o + 8], Ri = lastPoles[o + 9];
+      const dRr = Rr * lr - Ri * li, dRi = Rr * li + Ri * lr;
+      // dC = π·(dR·cot − R·(N/2)(1 + cot²)·dp)
+      const ctr = polePre[w + 28], cti = polePre[w + 29];
+      const kr = polePre[w + 26], ki = polePre[w + 27];
+      const kdr = kr * dpr - ki * dpi, kdi = kr * dpi + ki * dpr;
+      outR -= Math.PI * (dRr * ctr - dRi * cti - (Rr * kdr - Ri * kdi));
+      outI -= Math.PI * (dRr * cti + dRi * ctr - (Rr * kdi + Ri * kdr));
+    }
+    out[2 * p] = outR;
+    out[2 * p + 1] = outI;
   }
 }
 
@@ -870,15 +975,11 @@ const rootScratch = new Float64Array(4);
 
 /**
  * Weight of the free beam U_all for one camera point (½ per singular point outside the disc, ¼ per
- * singular point close to the rim), and the closed-form pole corrections for the close ones, which
- * are passed to `addCorrection` as R·π·cot(Np/2).
+ * singular point close to the rim); the close ones' poles, cot(Np/2) and residues R go to `lastPoles`
+ * (their corrections are R·π·cot(Np/2)).
  */
-function singularWeight(
-  setup: BenchSetup,
-  sad: SaddleResult,
-  n: number,
-  addCorrection: (re: number, im: number) => void,
-): number {
+function singularWeight(setup: BenchSetup, sad: SaddleResult, n: number): number {
+  lastNearPoles = 0;
   const h = sad.h;
   const h11r = h[0], h11i = h[1], h12r = h[2], h12i = h[3], h22r = h[4], h22i = h[5];
   // roots t of H11 t² + 2 H12 t + H22 = 0
@@ -957,7 +1058,11 @@ function singularWeight(
     const epr = mag * Math.cos(sad.expIm), epi = mag * Math.sin(sad.expIm);
     const Rr = epr * qr - epi * qi, Ri = epr * qi + epi * qr;
     const [cr, ci] = cotComplex((n * pr) / 2, (n * pi) / 2);
-    addCorrection(Math.PI * (Rr * cr - Ri * ci), Math.PI * (Rr * ci + Ri * cr));
+    const o = lastNearPoles * POLE;
+    lastPoles[o] = tr; lastPoles[o + 1] = ti; lastPoles[o + 2] = or; lastPoles[o + 3] = oi;
+    lastPoles[o + 4] = pr; lastPoles[o + 5] = pi; lastPoles[o + 6] = cr; lastPoles[o + 7] = ci;
+    lastPoles[o + 8] = Rr; lastPoles[o + 9] = Ri;
+    lastNearPoles++;
   }
   return weight;
 }
