@@ -372,12 +372,15 @@ function derivativeTables(
   lp: number,
   center: boolean,
 ): DerivativeTables {
-  const XT: Float64Array[] = [];
-  const YT: Float64Array[] = [];
-  const KZ: Float64Array[] = [];
+  // Terms interleaved so the kernel walks memory in order: XA[((ix·n + j)·nT + t)·6 + ·], YA[((iy·n + j)·nT + t)·4 + ·], KA[j·nT + t].
+  const nT = terms.length;
+  const XA = new Float64Array(nx * n * nT * 6);
+  const YA = new Float64Array(ny * n * nT * 4);
+  const KA = new Float64Array(n * nT);
   const dphi = (2 * Math.PI) / n;
   const d = emptyDerivs();
-  for (const jz of terms) {
+  for (let tt = 0; tt < nT; tt++) {
+    const jz = terms[tt];
     const tp = zernikePolynomialM([{ j: jz, value: 1 }], setup.zernikeRadiusM, lambda);
     const kz = new Float64Array(n);
     const dmv = new Float64Array(4 * n);
@@ -415,52 +418,39 @@ function derivativeTables(
       mdg[2 * j] = t.mvxr[j] * dgx + t.mvyr[j] * dgy;
       mdg[2 * j + 1] = t.mvxi[j] * dgx + t.mvyi[j] * dgy;
     }
-    const xt = new Float64Array(nx * n * 6);
-    const yt = new Float64Array(ny * n * 4);
+    for (let j = 0; j < n; j++) KA[j * nT + tt] = kz[j];
     for (let ix = 0; ix < nx; ix++) {
       for (let j = 0; j < n; j++) {
         const o = ix * n + j;
+        const w = (o * nT + tt) * 6;
         const dr = X[o * 10 + 8], di = X[o * 10 + 9];
         // δn_x = δm_x·d_x + m·δg0
-        xt[o * 6] = dmv[4 * j] * dr - dmv[4 * j + 1] * di + mdg[2 * j];
-        xt[o * 6 + 1] = dmv[4 * j] * di + dmv[4 * j + 1] * dr + mdg[2 * j + 1];
+        XA[w] = dmv[4 * j] * dr - dmv[4 * j + 1] * di + mdg[2 * j];
+        XA[w + 1] = dmv[4 * j] * di + dmv[4 * j + 1] * dr + mdg[2 * j + 1];
         // δs_x = δM_xx·d_x² + 2(δg0x·M_xx + δg0y·M_xy)·d_x
         const d2r = dr * dr - di * di, d2i = 2 * dr * di;
         const cr = 2 * (dg[2 * j] * t.mxxr[j] + dg[2 * j + 1] * t.mxyr[j]);
         const ci = 2 * (dg[2 * j] * t.mxxi[j] + dg[2 * j + 1] * t.mxyi[j]);
-        xt[o * 6 + 2] = dM[6 * j] * d2r - dM[6 * j + 1] * d2i + cr * dr - ci * di;
-        xt[o * 6 + 3] = dM[6 * j] * d2i + dM[6 * j + 1] * d2r + cr * di + ci * dr;
-        xt[o * 6 + 4] = 2 * (dM[6 * j + 2] * dr - dM[6 * j + 3] * di);
-        xt[o * 6 + 5] = 2 * (dM[6 * j + 2] * di + dM[6 * j + 3] * dr);
+        XA[w + 2] = dM[6 * j] * d2r - dM[6 * j + 1] * d2i + cr * dr - ci * di;
+        XA[w + 3] = dM[6 * j] * d2i + dM[6 * j + 1] * d2r + cr * di + ci * dr;
+        XA[w + 4] = 2 * (dM[6 * j + 2] * dr - dM[6 * j + 3] * di);
+        XA[w + 5] = 2 * (dM[6 * j + 2] * di + dM[6 * j + 3] * dr);
       }
     }
     for (let iy = 0; iy < ny; iy++) {
       for (let j = 0; j < n; j++) {
         const o = iy * n + j;
+        const w = (o * nT + tt) * 4;
         const dr = Y[o * 8 + 6], di = Y[o * 8 + 7];
-        yt[o * 4] = dmv[4 * j + 2] * dr - dmv[4 * j + 3] * di;
-        yt[o * 4 + 1] = dmv[4 * j + 2] * di + dmv[4 * j + 3] * dr;
+        YA[w] = dmv[4 * j + 2] * dr - dmv[4 * j + 3] * di;
+        YA[w + 1] = dmv[4 * j + 2] * di + dmv[4 * j + 3] * dr;
         const d2r = dr * dr - di * di, d2i = 2 * dr * di;
         const cr = 2 * (dg[2 * j] * t.mxyr[j] + dg[2 * j + 1] * t.myyr[j]);
         const ci = 2 * (dg[2 * j] * t.mxyi[j] + dg[2 * j + 1] * t.myyi[j]);
-        yt[o * 4 + 2] = dM[6 * j + 4] * d2r - dM[6 * j + 5] * d2i + cr * dr - ci * di;
-        yt[o * 4 + 3] = dM[6 * j + 4] * d2i + dM[6 * j + 5] * d2r + cr * di + ci * dr;
+        YA[w + 2] = dM[6 * j + 4] * d2r - dM[6 * j + 5] * d2i + cr * dr - ci * di;
+        YA[w + 3] = dM[6 * j + 4] * d2i + dM[6 * j + 5] * d2r + cr * di + ci * dr;
       }
     }
-    XT.push(xt);
-    YT.push(yt);
-    KZ.push(kz);
-  }
-  // Interleave the terms so the kernel walks memory in order: XA[((ix·n + j)·nT + t)·6 + ·], YA[((iy·n + j)·nT + t)·4 + ·], KA[j·nT + t].
-  const nT = terms.length;
-  const XA = new Float64Array(nx * n * nT * 6);
-  const YA = new Float64Array(ny * n * nT * 4);
-  const KA = new Float64Array(n * nT);
-  for (let tt = 0; tt < nT; tt++) {
-    const xt = XT[tt], yt = YT[tt], kz = KZ[tt];
-    for (let o = 0; o < nx * n; o++) for (let c = 0; c < 6; c++) XA[(o * nT + tt) * 6 + c] = xt[o * 6 + c];
-    for (let o = 0; o < ny * n; o++) for (let c = 0; c < 4; c++) YA[(o * nT + tt) * 4 + c] = yt[o * 4 + c];
-    for (let j = 0; j < n; j++) KA[j * nT + tt] = kz[j];
   }
   const XC = new Float64Array(center ? nx * n * 3 : 0);
   const YC = new Float64Array(center ? ny * n * 3 : 0);
