@@ -86,6 +86,20 @@ export function evalPolynomial(p: Polynomial2D, x: number, y: number, out: Deriv
 
 let cxr = new Float64Array(16), cxi = new Float64Array(16), cyr = new Float64Array(16), cyi = new Float64Array(16);
 
+/** Powers 0…n of x = xr + i·xi and y = yr + i·yi into the shared tables cxr, cxi, cyr, cyi. */
+function complexPowers(n: number, xr: number, xi: number, yr: number, yi: number): void {
+  if (cxr.length < n + 1) {
+    cxr = new Float64Array(n + 1); cxi = new Float64Array(n + 1); cyr = new Float64Array(n + 1); cyi = new Float64Array(n + 1);
+  }
+  cxr[0] = 1; cyr[0] = 1; cxi[0] = 0; cyi[0] = 0;
+  for (let i = 1; i <= n; i++) {
+    cxr[i] = cxr[i - 1] * xr - cxi[i - 1] * xi;
+    cxi[i] = cxr[i - 1] * xi + cxi[i - 1] * xr;
+    cyr[i] = cyr[i - 1] * yr - cyi[i - 1] * yi;
+    cyi[i] = cyr[i - 1] * yi + cyi[i - 1] * yr;
+  }
+}
+
 function addMonomial(out: Float64Array, slot: number, c: number, xr: number, xi: number, yr: number, yi: number): void {
   out[2 * slot] += c * (xr * yr - xi * yi);
   out[2 * slot + 1] += c * (xr * yi + xi * yr);
@@ -96,18 +110,8 @@ function addMonomial(out: Float64Array, slot: number, c: number, xr: number, xi:
  * out = [v, x, y, xx, xy, yy] as interleaved (re, im): length 12.
  */
 export function evalPolynomialComplex(p: Polynomial2D, xr: number, xi: number, yr: number, yi: number, out: Float64Array): Float64Array {
-  const n = p.degree + 1;
-  if (cxr.length < n + 1) {
-    cxr = new Float64Array(n + 1); cxi = new Float64Array(n + 1); cyr = new Float64Array(n + 1); cyi = new Float64Array(n + 1);
-  }
+  complexPowers(p.degree + 1, xr, xi, yr, yi);
   const xpr = cxr, xpi = cxi, ypr = cyr, ypi = cyi;
-  xpr[0] = 1; ypr[0] = 1; xpi[0] = 0; ypi[0] = 0;
-  for (let i = 1; i <= n; i++) {
-    xpr[i] = xpr[i - 1] * xr - xpi[i - 1] * xi;
-    xpi[i] = xpr[i - 1] * xi + xpi[i - 1] * xr;
-    ypr[i] = ypr[i - 1] * yr - ypi[i - 1] * yi;
-    ypi[i] = ypr[i - 1] * yi + ypi[i - 1] * yr;
-  }
   out.fill(0);
   for (let k = 0; k < p.coef.length; k++) {
     const a = p.px[k];
@@ -137,18 +141,8 @@ export function wavefrontPolynomial(wavelengthM: number, zernikeRadiusM: number,
  * out = [xxx, xxy, xyy, yyy] as interleaved (re, im): length 8.
  */
 export function evalThirdDerivativesComplex(p: Polynomial2D, xr: number, xi: number, yr: number, yi: number, out: Float64Array): Float64Array {
-  const n = p.degree + 1;
-  if (cxr.length < n + 1) {
-    cxr = new Float64Array(n + 1); cxi = new Float64Array(n + 1); cyr = new Float64Array(n + 1); cyi = new Float64Array(n + 1);
-  }
+  complexPowers(p.degree + 1, xr, xi, yr, yi);
   const xpr = cxr, xpi = cxi, ypr = cyr, ypi = cyi;
-  xpr[0] = 1; ypr[0] = 1; xpi[0] = 0; ypi[0] = 0;
-  for (let i = 1; i <= n; i++) {
-    xpr[i] = xpr[i - 1] * xr - xpi[i - 1] * xi;
-    xpi[i] = xpr[i - 1] * xi + xpi[i - 1] * xr;
-    ypr[i] = ypr[i - 1] * yr - ypi[i - 1] * yi;
-    ypi[i] = ypr[i - 1] * yi + ypi[i - 1] * yr;
-  }
   out.fill(0);
   for (let k = 0; k < p.coef.length; k++) {
     const a = p.px[k];
