@@ -324,15 +324,10 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   // The search's own frames take the fast model's first order (no next-order factor; 40 % cheaper per value):
   // it picked the same defocus as the full model in all 80 trials of the accuracy study.
   if (search !== coarse) search.frames.forEach((f) => (f.firstOrder = true));
-  // So do the coarse stage's frames that the reference-model polish will correct (it fits the first order plus
-  // its correction, measured at the coarse solution): the next-order term costs a second pass over the rim.
   const polishMode = options.referencePolish ?? 'auto';
-  if (coarse !== fine) {
-    coarse.frames.forEach((f, i) => {
-      const c = options.initialCentersM?.[i] ?? [0, 0];
-      if (polishMode === 'always' || (polishMode === 'auto' && regionReachesShadowEdge(f.input, c))) f.firstOrder = true;
-    });
-  }
+  // The frames the reference-model polish corrects: those whose region reaches the shadow edge at centres q.
+  const polishFor = (q: Float64Array) =>
+    inputs.map((f, i) => polishMode === 'always' || (polishMode === 'auto' && regionReachesShadowEdge(f, [q[nz + 4 * i], q[nz + 4 * i + 1]])));
 
   // --- start: centres, coarse search on defocus with scale and background solved linearly
   step(0, 'coarse search');
@@ -351,6 +346,13 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
     });
   }
   if (shared.source >= 0) p[shared.source] = sourceStartM;
+  // The coarse stage's frames that the polish will correct take the first order too (the polish fits the first
+  // order plus its correction, measured at the coarse solution): the next-order term costs a second pass over
+  // the rim.
+  if (coarse !== fine) {
+    const willPolish = polishFor(p);
+    coarse.frames.forEach((f, i) => (f.firstOrder = willPolish[i]));
+  }
   const dataWeights = new Float64Array(search.data.length);
   {
     let row = 0;
@@ -523,8 +525,6 @@ export function fitShadow(inputs: FitFrameInput[], options: FitOptions = {}): Fi
   const frames = fine.frames;
   const data = fine.data;
   const rim = fine.rim;
-  const polishFor = (q: Float64Array) =>
-    inputs.map((f, i) => polishMode === 'always' || (polishMode === 'auto' && regionReachesShadowEdge(f, [q[nz + 4 * i], q[nz + 4 * i + 1]])));
   // When the coarse solution already describes the frames, the polish's first correction is computed there and
   // the fine stage runs once, with it in place. The correction changes with p only through the fast model's
   // small error (a second round moves the coefficients by about 1 % of the first move), so computing it a few σ
